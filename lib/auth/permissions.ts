@@ -1,0 +1,107 @@
+import type { Role } from './roles';
+import { ForbiddenError } from '../errors';
+
+/*
+ * The one role → permission table. Pages, server actions and API routes all ask it; hiding a
+ * button is never the check. A cell is 'any' (every record) or 'own' (only records the user
+ * raised, created or owns, passed as `record.ownerIds`). Segregation of duties on approvals is a
+ * workflow guard on top of this table, not a setting.
+ */
+
+export const permissions = [
+  'deviation.read',
+  'deviation.raise',
+  'deviation.edit_draft',
+  'deviation.triage',
+  'deviation.investigate',
+  'deviation.approve',
+  'deviation.cancel',
+  'capa.read',
+  'capa.create',
+  'capa.plan',
+  'capa.complete_action',
+  'capa.approve',
+  'complaint.read',
+  'complaint.intake',
+  'complaint.read_personal',
+  'complaint.assess',
+  'complaint.approve',
+  'batch.read',
+  'equipment.read',
+  'ring.quarantine',
+  'ring.return_to_service',
+  'ring.retire',
+  'weight_check.read',
+  'weight_check.record',
+  'audit.read',
+  'masterdata.manage',
+  'users.manage',
+  'settings.manage',
+] as const;
+export type Permission = (typeof permissions)[number];
+export type Scope = 'any' | 'own';
+
+const O = 'own' as const;
+const A = 'any' as const;
+
+export const permissionTable: Record<Permission, Partial<Record<Role, Scope>>> = {
+  'deviation.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
+  'deviation.raise': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A },
+  'deviation.edit_draft': { operator: O, supervisor: O, qa_investigator: O, qa_approver: O },
+  'deviation.triage': { qa_investigator: A },
+  'deviation.investigate': { qa_investigator: A },
+  'deviation.approve': { qa_approver: A },
+  'deviation.cancel': { qa_investigator: A, qa_approver: A },
+  'capa.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
+  'capa.create': { qa_investigator: A, qa_approver: A },
+  'capa.plan': { qa_investigator: A },
+  'capa.complete_action': { operator: O, supervisor: O, qa_investigator: O, qa_approver: O },
+  'capa.approve': { qa_approver: A },
+  'complaint.read': { supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
+  'complaint.intake': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A },
+  'complaint.read_personal': { qa_investigator: A, qa_approver: A },
+  'complaint.assess': { qa_investigator: A },
+  'complaint.approve': { qa_approver: A },
+  'batch.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
+  'equipment.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
+  'ring.quarantine': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A },
+  'ring.return_to_service': { qa_investigator: A, qa_approver: A },
+  'ring.retire': { qa_approver: A },
+  'weight_check.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A },
+  'weight_check.record': { operator: A, supervisor: A, qa_investigator: A },
+  'audit.read': { qa_investigator: A, qa_approver: A, admin: A },
+  'masterdata.manage': { admin: A },
+  'users.manage': { admin: A },
+  'settings.manage': { admin: A },
+};
+
+export interface Actor {
+  id: number;
+  role: Role;
+}
+
+export interface ScopedRecord {
+  /** Users who count as the record's own people for 'own' permissions (raiser, creator, owner). */
+  ownerIds: readonly (number | null | undefined)[];
+}
+
+/** Pure predicate: may this role do this at all (optionally to this record)? */
+export function can(actor: Actor, permission: Permission, record?: ScopedRecord): boolean {
+  const scope = permissionTable[permission][actor.role];
+  if (!scope) return false;
+  if (scope === 'any') return true;
+  return record ? record.ownerIds.includes(actor.id) : true;
+}
+
+const describe = (p: Permission) => p.replace('.', ': ').replace(/_/g, ' ');
+
+/** Throws ForbiddenError with a reason a person can read. */
+export function assertCan(actor: Actor, permission: Permission, record?: ScopedRecord): void {
+  const scope = permissionTable[permission][actor.role];
+  if (!scope) {
+    throw new ForbiddenError(`Your role does not allow this (${describe(permission)}).`);
+  }
+  if (scope === 'own' && record && !record.ownerIds.includes(actor.id)) {
+    throw new ForbiddenError(`Your role allows this only on your own records (${describe(permission)}).`);
+  }
+}
