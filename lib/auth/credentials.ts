@@ -1,0 +1,131 @@
+import 'server-only';
+import { eq } from 'drizzle-orm';
+import { db, type DbOrTx } from '../../db/client';
+import { users } from '../../db/schema';
+import { writeAudit } from '../audit';
+import { ValidationError } from '../errors';
+import { afterFailure, isLocked, lockMinutes, maxConsecutiveFailures } from './lockout';
+import { decoyHash, verifyPassword } from './passwords';
+import type { Role } from './roles';
+
+/*
+ * Password checks for sign-in and for electronic signatures (21 CFR 11.200(a): a signature is
+ * executed with both components, user id and password). Failures of either kind count toward the
+ * same lock-out, and the lock is written to the audit trail (21 CFR 11.300(d)).
+ */
+
+export interface AuthenticatedUser {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+}
+
+type Outcome = 'ok' | 'wrong_password' | 'locked' | 'inactive';
+
+/** One attempt against one account, in its own transaction so a failure is counted even if the caller rolls back. */
+async function attempt(
+  userId: number,
+  password: string,
+  purpose: 'sign_in' | 'signature',
+): Promise<{ outcome: Outcome; user?: AuthenticatedUser }> {
+  return db.transaction(async (tx) => {
+    const [user] = await tx.select().from(users).where(eq(users.id, userId)).for('update');
+    if (!user) return { outcome: 'wrong_password' as const };
+    const now = new Date();
+    const passwordOk = await verifyPassword(password, user.passwordHash);
+    if (!user.active) return { outcome: 'inactive' as const };
+    if (isLocked(user.lockedUntil, now)) return { outcome: 'locked' as const };
+    const actor = { id: user.id, name: user.name };
+
+    if (passwordOk) {
+      if (purpose === 'sign_in') {
+        await tx
+          .update(users)
+          .set({ failedSignins: 0, lockedUntil: null, lastSigninAt: now })
+          .where(eq(users.id, user.id));
+        await writeAudit(tx, { actor, recordType: 'user', recordId: user.id, action: 'signed_in' });
+      } else if (user.failedSignins > 0) {
+        await tx.update(users).set({ failedSignins: 0 }).where(eq(users.id, user.id));
+      }
+      return { outcome: 'ok' as const, user: { id: user.id, email: user.email, name: user.name, role: user.role } };
+    }
+
+    const next = afterFailure(user.failedSignins, now);
+    await tx.update(users).set(next).where(eq(users.id, user.id));
+    await writeAudit(tx, {
+      actor,
+      recordType: 'user',
+      recordId: user.id,
+      action: purpose === 'sign_in' ? 'sign_in_failed' : 'signature_password_failed',
+      changes: [{ field: 'failed_signins', from: user.failedSignins, to: next.lockedUntil ? maxConsecutiveFailures : next.failedSignins }],
+    });
+    if (next.lockedUntil) {
+      await writeAudit(tx, {
+        actor,
+        recordType: 'user',
+        recordId: user.id,
+        action: 'account_locked',
+        changes: [{ field: 'locked_until', from: user.lockedUntil, to: next.lockedUntil }],
+        reason: `${maxConsecutiveFailures} consecutive failed password entries; locked for ${lockMinutes} minutes`,
+      });
+    }
+    return { outcome: 'wrong_password' as const };
+  });
+}
+
+/**
+ * Sign-in check. Returns the user, or null for every kind of failure alike (unknown e-mail, wrong
+ * password, locked, deactivated) so the caller cannot hint whether an account exists.
+ */
+export async function verifyCredentials(email: string, password: string): Promise<AuthenticatedUser | null> {
+  const [row] = await db
+    .select({ id: users.id })
+    .from(users)
+    .where(eq(users.email, email.trim().toLowerCase()))
+    .limit(1);
+  if (!row) {
+    await verifyPassword(password, decoyHash);
+    return null;
+  }
+  const result = await attempt(row.id, password, 'sign_in');
+  return result.outcome === 'ok' ? result.user! : null;
+}
+
+const signatureRefusals: Record<Exclude<Outcome, 'ok'>, string> = {
+  wrong_password: 'The password is not correct. Nothing was signed.',
+  locked: `Your account is locked after ${maxConsecutiveFailures} failed attempts. Try again in ${lockMinutes} minutes or ask an administrator.`,
+  inactive: 'Your account is deactivated.',
+};
+
+/**
+ * Re-checks the signer's password for an electronic signature. Call it BEFORE opening the
+ * transaction that records the signature: a wrong password is counted and audited in a
+ * transaction of its own, which must not wait on locks the caller's transaction holds.
+ * Throws ValidationError with a message on the `password` field.
+ */
+export async function verifySignaturePassword(userId: number, password: string): Promise<void> {
+  if (!password) {
+    throw new ValidationError('Enter your password to sign.', { password: ['Enter your password to sign.'] });
+  }
+  const { outcome } = await attempt(userId, password, 'signature');
+  if (outcome !== 'ok') {
+    const message = signatureRefusals[outcome];
+    throw new ValidationError(message, { password: [message] });
+  }
+}
+
+/**
+ * The same check for callers already inside a transaction. Safe only while that transaction has
+ * not yet written to the audit trail (the failure is recorded on a separate connection, which
+ * takes the audit chain lock).
+ */
+export async function checkPasswordForSignature(_tx: DbOrTx, userId: number, password: string): Promise<boolean> {
+  try {
+    await verifySignaturePassword(userId, password);
+    return true;
+  } catch (err) {
+    if (err instanceof ValidationError) return false;
+    throw err;
+  }
+}

@@ -1,0 +1,29 @@
+import type { NextConfig } from 'next';
+import { getEnv } from './lib/env';
+
+// Validate every setting once at build and at start: a bad configuration fails here with a message
+// naming each setting, not later inside a request.
+getEnv();
+
+const nextConfig: NextConfig = {
+  reactStrictMode: true,
+  poweredByHeader: false,
+  serverExternalPackages: ['mysql2', 'bcryptjs', 'minio', 'nodemailer'],
+  experimental: {
+    authInterrupts: true,
+  },
+  async headers() {
+    return [
+      {
+        source: '/:path*',
+        headers: [
+          { key: 'X-Content-Type-Options', value: 'nosniff' },
+          { key: 'Referrer-Policy', value: 'same-origin' },
+          { key: 'X-Frame-Options', value: 'DENY' },
+        ],
+      },
+    ];
+  },
+};
+
+export default nextConfig;
