@@ -35,8 +35,16 @@ async function attempt(
     const now = new Date();
     const passwordOk = await verifyPassword(password, user.passwordHash);
     if (!user.active) return { outcome: 'inactive' as const };
-    if (isLocked(user.lockedUntil, now)) return { outcome: 'locked' as const };
     const actor = { id: user.id, name: user.name };
+    if (isLocked(user.lockedUntil, now)) {
+      await writeAudit(tx, {
+        actor,
+        recordType: 'user',
+        recordId: user.id,
+        action: purpose === 'sign_in' ? 'sign_in_refused_locked' : 'signature_refused_locked',
+      });
+      return { outcome: 'locked' as const };
+    }
 
     if (passwordOk) {
       if (purpose === 'sign_in') {
