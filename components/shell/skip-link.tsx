@@ -1,0 +1,11 @@
+/** First stop for keyboard users: jumps past the header and navigation (WCAG 2.2 2.4.1). */
+export function SkipLink({ target = 'main' }: { target?: string }) {
+  return (
+    <a
+      href={`#${target}`}
+      className="sr-only z-50 rounded-md bg-brass-300 px-4 py-3 font-semibold text-ink-950 focus:not-sr-only focus:fixed focus:top-2 focus:left-2"
+    >
+      Skip to main content
+    </a>
+  );
+}

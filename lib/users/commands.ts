@@ -1,0 +1,275 @@
+import 'server-only';
+import { and, asc, eq, sql } from 'drizzle-orm';
+import { z } from 'zod';
+import { db, type DbOrTx } from '../../db/client';
+import { users } from '../../db/schema';
+import { diffFields, writeAudit } from '../audit';
+import { hashPassword } from '../auth/passwords';
+import { assertCan, type Actor } from '../auth/permissions';
+import { roleLabels } from '../auth/roles';
+import { ConflictError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
+import {
+  changeRoleSchema,
+  createUserSchema,
+  resetPasswordSchema,
+  setActiveSchema,
+  unlockUserSchema,
+  userPatchSchema,
+} from '../validation/users';
+import { getUser, type UserDto } from './queries';
+
+/*
+ * User administration. Each command takes the acting user (callers obtain it with requireUser(),
+ * which re-reads role and active flag from the database), checks users.manage, and makes its change
+ * in one transaction with the audit entry (21 CFR 11.10(e); EU GMP Annex 11 §12.3 on recording
+ * who created, changed or cancelled access). Users are never deleted, only deactivated, so every
+ * audit entry and signature keeps pointing at a real person (21 CFR 11.10(e), 11.50).
+ *
+ * `database` defaults to the pool; passing a transaction runs the command in a savepoint of it.
+ */
+
+export interface UserActor extends Actor {
+  name: string;
+}
+
+/** The fields whose changes the audit trail records. Never the password hash. */
+const auditedFields = ['email', 'name', 'title', 'role', 'active', 'lockedUntil', 'failedSignins'] as const;
+
+const auditView = (u: Pick<typeof users.$inferSelect, (typeof auditedFields)[number]>) =>
+  Object.fromEntries(auditedFields.map((f) => [f, u[f]])) as Record<string, unknown>;
+
+function parse<T extends z.ZodType>(schema: T, input: unknown): z.output<T> {
+  const result = schema.safeParse(input);
+  if (!result.success) {
+    const { fieldErrors, formErrors } = z.flattenError(result.error);
+    throw new ValidationError(
+      formErrors[0] ?? 'Some fields need attention.',
+      fieldErrors as Record<string, string[]>,
+    );
+  }
+  return result.data;
+}
+
+async function lockUser(tx: DbOrTx, userId: number) {
+  const [row] = await tx.select().from(users).where(eq(users.id, userId)).for('update');
+  if (!row) throw new NotFoundError('The user');
+  return row;
+}
+
+function assertVersion(row: { version: number }, expected: number): void {
+  if (row.version !== expected) throw new ConflictError();
+}
+
+/**
+ * Locks every active administrator (in id order, so concurrent commands queue instead of
+ * deadlocking) and refuses a change that would leave none: nobody could then manage access.
+ */
+async function assertAnotherAdminRemains(tx: DbOrTx, leavingUserId: number, message: string, field?: string) {
+  const admins = await tx
+    .select({ id: users.id })
+    .from(users)
+    .where(and(eq(users.role, 'admin'), eq(users.active, true)))
+    .orderBy(asc(users.id))
+    .for('update');
+  if (!admins.some((a) => a.id !== leavingUserId)) {
+    throw new ValidationError(message, field ? { [field]: [message] } : {});
+  }
+}
+
+const lastAdminMessage =
+  'Plumbline needs at least one active administrator. Give another person the Administrator role first.';
+
+async function bumpAndAudit(
+  tx: DbOrTx,
+  actor: UserActor,
+  before: typeof users.$inferSelect,
+  changes: Partial<typeof users.$inferInsert>,
+  action: string,
+  reason: string | undefined,
+): Promise<void> {
+  const updated = await tx
+    .update(users)
+    .set({ ...changes, version: sql`${users.version} + 1` })
+    .where(and(eq(users.id, before.id), eq(users.version, before.version)));
+  if (updated[0].affectedRows !== 1) throw new ConflictError();
+  await writeAudit(tx, {
+    actor: { id: actor.id, name: actor.name },
+    recordType: 'user',
+    recordId: before.id,
+    action,
+    changes: diffFields(auditView(before), auditView({ ...before, ...changes }), auditedFields),
+    reason: reason ?? null,
+  });
+}
+
+async function reload(userId: number, database: DbOrTx): Promise<UserDto> {
+  const user = await getUser(userId, database);
+  if (!user) throw new NotFoundError('The user');
+  return user;
+}
+
+const isDuplicateKey = (err: unknown): boolean => {
+  const cause = (err as { cause?: { errno?: number } })?.cause ?? (err as { errno?: number });
+  return cause?.errno === 1062;
+};
+
+const emailTaken = 'Another account already uses this e-mail address.';
+
+export async function createUser(actor: UserActor, input: unknown, database: DbOrTx = db): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(createUserSchema, input);
+  const passwordHash = await hashPassword(data.password);
+  try {
+    const id = await database.transaction(async (tx) => {
+      const [existing] = await tx.select({ id: users.id }).from(users).where(eq(users.email, data.email)).limit(1);
+      if (existing) throw new ValidationError(emailTaken, { email: [emailTaken] });
+      const now = new Date();
+      const values = {
+        email: data.email,
+        name: data.name,
+        title: data.title,
+        role: data.role,
+        passwordHash,
+        active: true,
+        passwordChangedAt: now,
+      };
+      const [inserted] = await tx.insert(users).values(values).$returningId();
+      const userId = inserted!.id;
+      await writeAudit(tx, {
+        actor: { id: actor.id, name: actor.name },
+        recordType: 'user',
+        recordId: userId,
+        action: 'user_created',
+        changes: diffFields(null, values, ['email', 'name', 'title', 'role', 'active']),
+      });
+      return userId;
+    });
+    return reload(id, database);
+  } catch (err) {
+    if (isDuplicateKey(err)) throw new ValidationError(emailTaken, { email: [emailTaken] });
+    throw err;
+  }
+}
+
+export async function changeUserRole(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(changeRoleSchema, input);
+  await database.transaction(async (tx) => {
+    if (data.role !== 'admin') await assertAnotherAdminRemains(tx, userId, lastAdminMessage, 'role');
+    const before = await lockUser(tx, userId);
+    assertVersion(before, data.version);
+    if (before.role === data.role) {
+      const same = `${before.name} already has the ${roleLabels[data.role]} role.`;
+      throw new ValidationError(same, { role: [same] });
+    }
+    await bumpAndAudit(tx, actor, before, { role: data.role }, 'role_changed', data.reason);
+  });
+  return reload(userId, database);
+}
+
+export async function deactivateUser(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(setActiveSchema, input);
+  if (userId === actor.id) {
+    throw new ForbiddenError('You cannot deactivate your own account. Ask another administrator.');
+  }
+  await database.transaction(async (tx) => {
+    await assertAnotherAdminRemains(tx, userId, lastAdminMessage);
+    const before = await lockUser(tx, userId);
+    assertVersion(before, data.version);
+    if (!before.active) throw new ConflictError(`${before.name} is already deactivated.`);
+    await bumpAndAudit(tx, actor, before, { active: false }, 'deactivated', data.reason);
+  });
+  return reload(userId, database);
+}
+
+export async function reactivateUser(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(setActiveSchema, input);
+  await database.transaction(async (tx) => {
+    const before = await lockUser(tx, userId);
+    assertVersion(before, data.version);
+    if (before.active) throw new ConflictError(`${before.name} is already active.`);
+    await bumpAndAudit(tx, actor, before, { active: true }, 'reactivated', data.reason);
+  });
+  return reload(userId, database);
+}
+
+/**
+ * Sets a temporary password chosen by the administrator. The audit entry records that a reset
+ * happened and when, never the hash or the password.
+ */
+export async function resetUserPassword(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(resetPasswordSchema, input);
+  const passwordHash = await hashPassword(data.password);
+  await database.transaction(async (tx) => {
+    const before = await lockUser(tx, userId);
+    assertVersion(before, data.version);
+    await bumpAndAudit(tx, actor, before, { passwordHash, passwordChangedAt: new Date() }, 'password_reset', data.reason);
+  });
+  return reload(userId, database);
+}
+
+/** Lifts a sign-in lock-out before it expires and clears the failure count. */
+export async function unlockUser(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const data = parse(unlockUserSchema, input);
+  await database.transaction(async (tx) => {
+    const before = await lockUser(tx, userId);
+    assertVersion(before, data.version);
+    if (before.lockedUntil === null && before.failedSignins === 0) {
+      throw new ConflictError(`${before.name} is not locked out.`);
+    }
+    await bumpAndAudit(tx, actor, before, { lockedUntil: null, failedSignins: 0 }, 'unlocked', data.reason);
+  });
+  return reload(userId, database);
+}
+
+/** One entry point for PATCH /api/users/:id, dispatching on `action`. */
+export async function updateUser(
+  actor: UserActor,
+  userId: number,
+  input: unknown,
+  database: DbOrTx = db,
+): Promise<UserDto> {
+  assertCan(actor, 'users.manage');
+  const { action, ...rest } = parse(userPatchSchema, input);
+  switch (action) {
+    case 'change_role':
+      return changeUserRole(actor, userId, rest, database);
+    case 'deactivate':
+      return deactivateUser(actor, userId, rest, database);
+    case 'reactivate':
+      return reactivateUser(actor, userId, rest, database);
+    case 'reset_password':
+      return resetUserPassword(actor, userId, rest, database);
+    case 'unlock':
+      return unlockUser(actor, userId, rest, database);
+  }
+}
