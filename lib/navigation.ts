@@ -10,16 +10,43 @@ export interface NavEntry {
   href: string;
   label: string;
   permission: Permission;
+  /** One line for the overview page. */
+  description: string;
 }
 
 export const navEntries: readonly NavEntry[] = [
-  { href: '/deviations', label: 'Deviations', permission: 'deviation.read' },
-  { href: '/capa', label: 'CAPA', permission: 'capa.read' },
-  { href: '/complaints', label: 'Complaints', permission: 'complaint.read' },
-  { href: '/batches', label: 'Batches', permission: 'batch.read' },
-  { href: '/equipment', label: 'Equipment', permission: 'equipment.read' },
-  { href: '/weight-checks', label: 'Weight checks', permission: 'weight_check.read' },
-  { href: '/admin', label: 'Admin', permission: 'users.manage' },
+  {
+    href: '/deviations',
+    label: 'Deviations',
+    permission: 'deviation.read',
+    description: 'Departures from procedure, from report to closure.',
+  },
+  {
+    href: '/capa',
+    label: 'CAPA',
+    permission: 'capa.read',
+    description: 'Corrective and preventive actions and their effectiveness checks.',
+  },
+  {
+    href: '/complaints',
+    label: 'Complaints',
+    permission: 'complaint.read',
+    description: 'Customer complaints, reportability and responses.',
+  },
+  { href: '/batches', label: 'Batches', permission: 'batch.read', description: 'Lots filled on the lines and their status.' },
+  {
+    href: '/equipment',
+    label: 'Equipment',
+    permission: 'equipment.read',
+    description: 'Filling machines and their filling rings.',
+  },
+  {
+    href: '/weight-checks',
+    label: 'Weight checks',
+    permission: 'weight_check.read',
+    description: 'In-process fill weights of capsule samples.',
+  },
+  { href: '/admin', label: 'Admin', permission: 'users.manage', description: 'People, roles and access.' },
 ];
 
 export function navEntriesFor(actor: Actor): NavEntry[] {

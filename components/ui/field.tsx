@@ -24,7 +24,11 @@ function FieldShell({ id, label, hint, errors, required, children }: FieldShellP
       <label htmlFor={id} className="font-semibold text-ink-900">
         {label}
         {required ? (
-          <span className="ml-1 font-normal text-ink-600">(required)</span>
+          // The control itself carries `required`; the word is for sighted users and would only
+          // repeat itself in the accessible name.
+          <span aria-hidden="true" className="ml-1 font-normal text-ink-600">
+            (required)
+          </span>
         ) : null}
       </label>
       {hint ? (

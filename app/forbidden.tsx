@@ -1,0 +1,17 @@
+import { StatusPage, forbiddenText } from '@/components/shell/status-page';
+import { Wordmark } from '@/components/shell/wordmark';
+
+export default function Forbidden() {
+  return (
+    <>
+      <header className="surface-dark bg-ink-900 px-6 py-4">
+        <Wordmark tone="light" />
+      </header>
+      <main id="main" className="px-4">
+        <StatusPage code="403" title="Not available to your role">
+          {forbiddenText}
+        </StatusPage>
+      </main>
+    </>
+  );
+}
