@@ -102,7 +102,7 @@ export async function startSmtpFake(opts: SmtpFakeOptions): Promise<RunningSmtpF
               cc: addresses(parsed.cc),
               subject: parsed.subject ?? '',
               text: parsed.text ?? '',
-              html: parsed.html === false ? null : parsed.html,
+              html: parsed.html || null,
               messageId: parsed.messageId ?? null,
               date: parsed.date ? parsed.date.toISOString() : null,
               attachments: parsed.attachments.map((a) => ({

@@ -68,3 +68,31 @@ export function pidAlive(pid: number): boolean {
     return false;
   }
 }
+
+/**
+ * Installs every missing package with one `apt-get update` and one `apt-get install`, so a fresh
+ * machine pays for the package index once. Each entry is a command to look for and the package
+ * that provides it.
+ */
+export function ensureDebianPackages(
+  wanted: readonly { command: string; pkg: string }[],
+  log: (line: string) => void,
+): void {
+  const missing = wanted.filter((w) => !commandExists(w.command));
+  if (missing.length === 0) return;
+  const pkgs = [...new Set(missing.map((m) => m.pkg))];
+  if (!isRoot()) {
+    throw new StartError(
+      `${missing.map((m) => m.command).join(', ')} not installed and this user cannot install packages. ` +
+        `Run as root, or install them first:\n  sudo apt-get update && sudo apt-get install -y ${pkgs.join(' ')}`,
+    );
+  }
+  log(`installing ${pkgs.join(', ')} from Debian (apt-get) ...`);
+  const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+  execFileSync('apt-get', ['update', '-qq'], { stdio: 'inherit', env });
+  execFileSync('apt-get', ['install', '-y', '-qq', '--no-install-recommends', ...pkgs], { stdio: 'inherit', env });
+  const still = missing.filter((m) => !commandExists(m.command));
+  if (still.length) {
+    throw new StartError(`installed ${pkgs.join(', ')} but ${still.map((m) => m.command).join(', ')} is still not on PATH`);
+  }
+}
