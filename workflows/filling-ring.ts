@@ -7,7 +7,8 @@
  *
  * Guards read only the actor and the context, never the event's payload, so the write path can ask
  * which events a person may send without knowing what they will type. Each transition's `meta`
- * says what it asks of that person: a reason, a signature and its meaning.
+ * says what it asks of that person: a reason, a signature and its meaning. Actions only name an
+ * effect; lib/equipment performs it (telling QA that a ring has been taken out of service).
  */
 import { setup } from 'xstate';
 import type { RingState } from './states';
@@ -40,6 +41,10 @@ export const fillingRingMachine = setup({
     byQaInvestigatorOrApprover: ({ event }) => qaReviewers.includes(event.actor.role),
     byQaApprover: ({ event }) => event.actor.role === 'qa_approver',
   },
+  actions: {
+    // Named here, performed by the write path inside the transaction (an outbox row per QA reader).
+    notifyQaOfQuarantine: () => {},
+  },
 }).createMachine({
   id: 'filling_ring',
   initial: 'in_service' satisfies RingState,
@@ -47,7 +52,12 @@ export const fillingRingMachine = setup({
   states: {
     in_service: {
       on: {
-        quarantine: { target: 'quarantined', guard: 'byFloorOrQa', meta: { reason: 'required' } },
+        quarantine: {
+          target: 'quarantined',
+          guard: 'byFloorOrQa',
+          actions: 'notifyQaOfQuarantine',
+          meta: { reason: 'required' },
+        },
       },
     },
     quarantined: {

@@ -217,7 +217,7 @@ export interface CreateRequest<K extends AnyRecordKind> {
   /** The permission creating this kind needs, e.g. 'deviation.raise'. */
   permission: Permission;
   /** Column values; status and version come from the machine and the path. */
-  values: Omit<InsertOf<K>, 'id' | 'status' | 'version'>;
+  values: { [P in keyof InsertOf<K> as P extends 'id' | 'status' | 'version' ? never : P]: InsertOf<K>[P] };
   /** Allocate a human number into the `number` column; the year defaults to the current UTC year. */
   number?: { type: NumberedRecordType; year?: number };
   reason?: string | null;
