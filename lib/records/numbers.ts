@@ -1,6 +1,8 @@
 import 'server-only';
-import { sql } from 'drizzle-orm';
-import type { Tx } from '../../db/client';
+import { and, eq, sql } from 'drizzle-orm';
+import { connect, type Tx } from '../../db/client';
+import { recordCounters } from '../../db/schema';
+import { getEnv } from '../env';
 import { ValidationError } from '../errors';
 import { formatRecordNumber } from './number-format';
 import { numberPrefixes, type NumberedRecordType } from './types';
@@ -12,13 +14,35 @@ export { formatRecordNumber, parseRecordNumber } from './number-format';
  * LAST_INSERT_ID(expr), which hands the new value back on this connection only, and stays locked
  * until the creating transaction ends: concurrent creations queue on it, and a creation that
  * rolls back gives its number back to the next one.
+ *
+ * The first number of a year needs the row to exist. If the creating transaction inserted it and
+ * then rolled back, the transactions queued behind it would deadlock on the vanished row (InnoDB
+ * gives every waiter a shared lock, then each wants it exclusive). So a missing row is created at
+ * 0 on a connection of its own, committed at once, before this transaction bumps it.
  */
+
+async function ensureCounterRow(tx: Tx, prefix: string, year: number): Promise<void> {
+  // A plain read takes no lock, so it cannot block the insert below.
+  const [row] = await tx
+    .select({ prefix: recordCounters.prefix })
+    .from(recordCounters)
+    .where(and(eq(recordCounters.prefix, prefix), eq(recordCounters.year, year)));
+  if (row) return;
+  // Not from the pool: a transaction waiting for a second pool connection could starve the pool.
+  const { conn } = await connect(getEnv().DATABASE_URL);
+  try {
+    await conn.query('INSERT IGNORE INTO record_counters (prefix, year, last_value) VALUES (?, ?, 0)', [prefix, year]);
+  } finally {
+    await conn.end();
+  }
+}
 
 export async function allocateNumber(tx: Tx, type: NumberedRecordType, year: number): Promise<string> {
   if (!Number.isInteger(year) || year < 2000 || year > 9999) {
     throw new ValidationError(`Record numbers need a four-digit year, not ${year}.`);
   }
   const prefix = numberPrefixes[type];
+  await ensureCounterRow(tx, prefix, year);
   await tx.execute(
     sql`INSERT INTO record_counters (prefix, year, last_value) VALUES (${prefix}, ${year}, LAST_INSERT_ID(1))
         ON DUPLICATE KEY UPDATE last_value = LAST_INSERT_ID(last_value + 1)`,
