@@ -32,7 +32,7 @@ export function CreateUserForm({
         defaultValue={v.email ?? ''} errors={e.email} required hint="Used to sign in and for notifications." />
       <TextField name="title" label="Job title" autoComplete="off" defaultValue={v.title ?? ''} errors={e.title}
         hint="Printed under the name on signatures, e.g. “Line supervisor”." />
-      <SelectField name="role" label="Role" options={[{ value: '', label: 'Choose a role' }, ...roleOptions]}
+      <SelectField key={`role-${state.submissions}`} name="role" label="Role" options={[{ value: '', label: 'Choose a role' }, ...roleOptions]}
         defaultValue={v.role ?? ''} errors={e.role} required />
       <TextField name="password" label="Temporary password" type="password" autoComplete="new-password"
         minLength={passwordMinLength} errors={e.password} required

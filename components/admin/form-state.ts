@@ -9,6 +9,11 @@ export interface AdminFormState {
   message: string | null;
   fieldErrors: Record<string, string[]>;
   values: Record<string, string>;
+  /**
+   * Counts submissions. A <select> ignores a changed defaultValue and React's form reset puts it
+   * back to its first option, so selects are keyed on this to remount with the value to show.
+   */
+  submissions: number;
 }
 
-export const idleFormState: AdminFormState = { status: 'idle', message: null, fieldErrors: {}, values: {} };
+export const idleFormState: AdminFormState = { status: 'idle', message: null, fieldErrors: {}, values: {}, submissions: 0 };

@@ -103,6 +103,7 @@ export function ChangeRoleForm({
       {(state) => (
         <>
           <SelectField
+            key={`role-${state.submissions}-${currentRole}`}
             id="role-select"
             name="role"
             label="New role"

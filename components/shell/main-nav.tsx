@@ -1,12 +1,23 @@
 'use client';
 
-import Link from 'next/link';
+import Link, { useLinkStatus } from 'next/link';
 import { usePathname } from 'next/navigation';
 import { isCurrentSection } from '@/lib/navigation';
 
 export interface MainNavLink {
   href: string;
   label: string;
+}
+
+/** A small bar under a link while its page is on the way: a tablet on a slow network shows the tap landed. */
+function PendingBar() {
+  const { pending } = useLinkStatus();
+  return (
+    <span
+      aria-hidden="true"
+      className={`absolute inset-x-3 bottom-1 h-0.5 bg-brass-300 transition-opacity ${pending ? 'animate-pulse opacity-100' : 'opacity-0'}`}
+    />
+  );
 }
 
 /** The section links the server decided this role may see; marks the current section. */
@@ -22,13 +33,14 @@ export function MainNav({ links }: { links: readonly MainNavLink[] }) {
               <Link
                 href={link.href}
                 aria-current={current ? 'page' : undefined}
-                className={`flex min-h-12 items-center border-b-4 px-3 text-base font-semibold ${
+                className={`relative flex min-h-12 items-center border-b-4 px-3 text-base font-semibold ${
                   current
                     ? 'border-brass-400 text-white'
                     : 'border-transparent text-ink-200 hover:border-ink-400 hover:text-white'
                 }`}
               >
                 {link.label}
+                <PendingBar />
               </Link>
             </li>
           );

@@ -21,16 +21,18 @@ interface FieldShellProps {
 function FieldShell({ id, label, hint, errors, required, children }: FieldShellProps) {
   return (
     <div className="flex flex-col gap-1">
-      <label htmlFor={id} className="font-semibold text-ink-900">
-        {label}
+      <p className="flex flex-wrap items-baseline gap-x-1">
+        <label htmlFor={id} className="font-semibold text-ink-900">
+          {label}
+        </label>
         {required ? (
-          // The control itself carries `required`; the word is for sighted users and would only
-          // repeat itself in the accessible name.
-          <span aria-hidden="true" className="ml-1 font-normal text-ink-600">
+          // Beside the label, not in it: the control carries `required` for assistive technology,
+          // and the label stays the field's plain name.
+          <span aria-hidden="true" className="text-ink-600">
             (required)
           </span>
         ) : null}
-      </label>
+      </p>
       {hint ? (
         <p id={`${id}-hint`} className="text-sm text-ink-600">
           {hint}

@@ -40,13 +40,20 @@ function fields(formData: FormData): Record<string, string> {
 }
 
 async function execute(
+  previous: AdminFormState,
   formData: FormData,
   command: (actor: UserActor, input: Record<string, string>) => Promise<UserDto>,
 ): Promise<{ user: UserDto; state?: undefined } | { user?: undefined; state: AdminFormState }> {
   const result = await runAction(async () => command(await requireUser(), fields(formData)));
   if (!result.ok) {
     return {
-      state: { status: 'failed', message: result.message, fieldErrors: result.fieldErrors ?? {}, values: typedValues(formData) },
+      state: {
+        status: 'failed',
+        message: result.message,
+        fieldErrors: result.fieldErrors ?? {},
+        values: typedValues(formData),
+        submissions: previous.submissions + 1,
+      },
     };
   }
   revalidatePath('/admin/users', 'layout');
@@ -54,35 +61,43 @@ async function execute(
 }
 
 async function run(
+  previous: AdminFormState,
   formData: FormData,
   command: (actor: UserActor, input: Record<string, string>) => Promise<UserDto>,
   successMessage: (user: UserDto) => string,
 ): Promise<AdminFormState> {
-  const outcome = await execute(formData, command);
+  const outcome = await execute(previous, formData, command);
   if (outcome.state) return outcome.state;
-  return { status: 'saved', message: successMessage(outcome.user), fieldErrors: {}, values: {} };
+  return {
+    status: 'saved',
+    message: successMessage(outcome.user),
+    fieldErrors: {},
+    values: {},
+    submissions: previous.submissions + 1,
+  };
 }
 
-export async function createUserAction(_previous: AdminFormState, formData: FormData): Promise<AdminFormState> {
-  const outcome = await execute(formData, createUser);
+export async function createUserAction(previous: AdminFormState, formData: FormData): Promise<AdminFormState> {
+  const outcome = await execute(previous, formData, createUser);
   if (outcome.state) return outcome.state;
   redirect(`/admin/users/${outcome.user.id}?created=1`);
 }
 
 export async function changeRoleAction(
   userId: number,
-  _previous: AdminFormState,
+  previous: AdminFormState,
   formData: FormData,
 ): Promise<AdminFormState> {
-  return run(formData, (actor, input) => changeUserRole(actor, userId, input), (u) => `${u.name} is now ${roleLabels[u.role]}.`);
+  return run(previous, formData, (actor, input) => changeUserRole(actor, userId, input), (u) => `${u.name} is now ${roleLabels[u.role]}.`);
 }
 
 export async function deactivateAction(
   userId: number,
-  _previous: AdminFormState,
+  previous: AdminFormState,
   formData: FormData,
 ): Promise<AdminFormState> {
   return run(
+    previous,
     formData,
     (actor, input) => deactivateUser(actor, userId, input),
     (u) => `${u.name} is deactivated and can no longer sign in.`,
@@ -91,18 +106,19 @@ export async function deactivateAction(
 
 export async function reactivateAction(
   userId: number,
-  _previous: AdminFormState,
+  previous: AdminFormState,
   formData: FormData,
 ): Promise<AdminFormState> {
-  return run(formData, (actor, input) => reactivateUser(actor, userId, input), (u) => `${u.name} can sign in again.`);
+  return run(previous, formData, (actor, input) => reactivateUser(actor, userId, input), (u) => `${u.name} can sign in again.`);
 }
 
 export async function resetPasswordAction(
   userId: number,
-  _previous: AdminFormState,
+  previous: AdminFormState,
   formData: FormData,
 ): Promise<AdminFormState> {
   return run(
+    previous,
     formData,
     (actor, input) => resetUserPassword(actor, userId, input),
     (u) => `The password of ${u.name} is reset. Give them the temporary password in person.`,
@@ -111,8 +127,8 @@ export async function resetPasswordAction(
 
 export async function unlockAction(
   userId: number,
-  _previous: AdminFormState,
+  previous: AdminFormState,
   formData: FormData,
 ): Promise<AdminFormState> {
-  return run(formData, (actor, input) => unlockUser(actor, userId, input), (u) => `${u.name} can try to sign in again.`);
+  return run(previous, formData, (actor, input) => unlockUser(actor, userId, input), (u) => `${u.name} can try to sign in again.`);
 }
