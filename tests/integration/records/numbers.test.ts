@@ -8,9 +8,9 @@ import { makeUser } from '../support/fixtures';
 import { numberedCapaKind } from '../support/test-kinds';
 
 /*
- * Human record numbers must be unique (21 CFR 211.180 / EU GMP Part I 4.x: records are identified
- * unambiguously) and, by common practice, gap-free within a year so a missing record shows. The
- * years used here (2091 and a random later one) keep these numbers apart from real ones.
+ * Human record numbers are unique and gap-free within a year, so a record that went missing shows
+ * as a hole (common practice for controlled quality records; ALCOA+ "complete"). The years used
+ * here (2091 and random later ones) keep these numbers apart from real ones.
  */
 
 afterAll(closeDb);
