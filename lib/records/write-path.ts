@@ -216,8 +216,8 @@ export interface CreateRequest<K extends AnyRecordKind> {
   actor: RecordActor;
   /** The permission creating this kind needs, e.g. 'deviation.raise'. */
   permission: Permission;
-  /** Column values; status and version come from the machine and the path. */
-  values: { [P in keyof InsertOf<K> as P extends 'id' | 'status' | 'version' ? never : P]: InsertOf<K>[P] };
+  /** Column values; status and version come from the machine and the path, number from `number`. */
+  values: { [P in keyof InsertOf<K> as P extends 'id' | 'status' | 'version' | 'number' ? never : P]: InsertOf<K>[P] };
   /** Allocate a human number into the `number` column; the year defaults to the current UTC year. */
   number?: { type: NumberedRecordType; year?: number };
   reason?: string | null;
