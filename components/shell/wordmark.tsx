@@ -3,7 +3,7 @@
  * The line takes the text colour so the mark works on light and dark surfaces; the bob is brass.
  */
 
-export function PlumbMark({ className = 'h-8 w-6' }: { className?: string }) {
+export function PlumbMark({ className = 'h-9 w-7' }: { className?: string }) {
   return (
     <svg viewBox="0 0 24 32" className={className} aria-hidden="true" focusable="false">
       <path d="M12 1v8.5" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />

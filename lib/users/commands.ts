@@ -38,13 +38,17 @@ const auditedFields = ['email', 'name', 'title', 'role', 'active', 'lockedUntil'
 const auditView = (u: Pick<typeof users.$inferSelect, (typeof auditedFields)[number]>) =>
   Object.fromEntries(auditedFields.map((f) => [f, u[f]])) as Record<string, unknown>;
 
+/*
+ * Same behaviour as parseInput in lib/define-action.ts, kept here because that module imports the
+ * Auth.js session and these commands take their actor as an argument (and run under vitest).
+ */
 function parse<T extends z.ZodType>(schema: T, input: unknown): z.output<T> {
   const result = schema.safeParse(input);
   if (!result.success) {
     const { fieldErrors, formErrors } = z.flattenError(result.error);
     throw new ValidationError(
-      formErrors[0] ?? 'Some fields need attention.',
-      fieldErrors as Record<string, string[]>,
+      formErrors[0] ?? 'Check the highlighted fields.',
+      Object.fromEntries(Object.entries(fieldErrors).filter((e): e is [string, string[]] => Array.isArray(e[1]) && e[1].length > 0)),
     );
   }
   return result.data;

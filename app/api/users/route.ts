@@ -1,27 +1,21 @@
-import { requireUser } from '@/lib/auth/session';
 import { assertCan } from '@/lib/auth/permissions';
+import { requireUser } from '@/lib/auth/session';
+import { readJson, respond } from '@/lib/define-action';
 import { createUser } from '@/lib/users/commands';
 import { listUsers } from '@/lib/users/queries';
-import { errorResponse, readJson } from '@/lib/users/results';
 import { listUsersQuerySchema } from '@/lib/validation/users';
 
+/** GET /api/users?page= → { page, pageSize, total, rows }, 50 a page, active accounts first. */
 export async function GET(request: Request) {
-  try {
+  return respond(async () => {
     const user = await requireUser();
     assertCan(user, 'users.manage');
     const { page } = listUsersQuerySchema.parse(Object.fromEntries(new URL(request.url).searchParams));
-    return Response.json(await listUsers(page), { headers: { 'Cache-Control': 'no-store' } });
-  } catch (err) {
-    return errorResponse(err);
-  }
+    return listUsers(page);
+  });
 }
 
+/** POST /api/users { name, email, title, role, password } → 201 with the new account. */
 export async function POST(request: Request) {
-  try {
-    const user = await requireUser();
-    const created = await createUser(user, await readJson(request));
-    return Response.json(created, { status: 201, headers: { Location: `/api/users/${created.id}` } });
-  } catch (err) {
-    return errorResponse(err);
-  }
+  return respond(async () => createUser(await requireUser(), await readJson(request)), 201);
 }

@@ -15,7 +15,7 @@ import {
   type UserActor,
 } from '@/lib/users/commands';
 import type { UserDto } from '@/lib/users/queries';
-import { runAction } from '@/lib/users/results';
+import { describeError } from '@/lib/define-action';
 
 /*
  * Form actions for Admin → Users. Each one re-reads the signed-in user (requireUser) and hands the
@@ -44,20 +44,17 @@ async function execute(
   formData: FormData,
   command: (actor: UserActor, input: Record<string, string>) => Promise<UserDto>,
 ): Promise<{ user: UserDto; state?: undefined } | { user?: undefined; state: AdminFormState }> {
-  const result = await runAction(async () => command(await requireUser(), fields(formData)));
-  if (!result.ok) {
+  let user: UserDto;
+  try {
+    user = await command(await requireUser(), fields(formData));
+  } catch (err) {
+    const { message, fieldErrors } = describeError(err);
     return {
-      state: {
-        status: 'failed',
-        message: result.message,
-        fieldErrors: result.fieldErrors ?? {},
-        values: typedValues(formData),
-        submissions: previous.submissions + 1,
-      },
+      state: { status: 'failed', message, fieldErrors, values: typedValues(formData), submissions: previous.submissions + 1 },
     };
   }
   revalidatePath('/admin/users', 'layout');
-  return { user: result.data };
+  return { user };
 }
 
 async function run(
