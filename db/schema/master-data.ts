@@ -107,6 +107,7 @@ export const batches = mysqlTable(
   },
   (t) => [
     uniqueIndex('batches_lot_uq').on(t.lotNumber),
+    index('batches_manufactured_idx').on(t.manufacturedOn, t.id),
     index('batches_product_idx').on(t.productId, t.manufacturedOn),
     index('batches_machine_idx').on(t.machineId, t.manufacturedOn),
     index('batches_ring_idx').on(t.ringId, t.manufacturedOn),

@@ -66,7 +66,7 @@ async function attempt(
       recordType: 'user',
       recordId: user.id,
       action: purpose === 'sign_in' ? 'sign_in_failed' : 'signature_password_failed',
-      changes: [{ field: 'failed_signins', from: user.failedSignins, to: next.lockedUntil ? maxConsecutiveFailures : next.failedSignins }],
+      changes: [{ field: 'failedSignins', from: user.failedSignins, to: next.lockedUntil ? maxConsecutiveFailures : next.failedSignins }],
     });
     if (next.lockedUntil) {
       await writeAudit(tx, {
@@ -74,7 +74,7 @@ async function attempt(
         recordType: 'user',
         recordId: user.id,
         action: 'account_locked',
-        changes: [{ field: 'locked_until', from: user.lockedUntil, to: next.lockedUntil }],
+        changes: [{ field: 'lockedUntil', from: user.lockedUntil, to: next.lockedUntil }],
         reason: `${maxConsecutiveFailures} consecutive failed password entries; locked for ${lockMinutes} minutes`,
       });
     }
