@@ -1,0 +1,1 @@
+CREATE INDEX `batches_manufactured_idx` ON `batches` (`manufactured_on`,`id`);
