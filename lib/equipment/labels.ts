@@ -25,5 +25,8 @@ export const ringConditionLabels: Record<RingCondition, string> = {
   damaged: 'Damaged',
 };
 
+/** Best to worst, for pickers. */
+export const ringConditionOrder = Object.keys(ringConditionLabels) as RingCondition[];
+
 /** Conditions a ring may be in when it goes back on a machine (common practice: no dents, no damage). */
 export const serviceableConditions = ['good', 'worn'] as const satisfies readonly RingCondition[];
