@@ -32,29 +32,33 @@ const decimal = (n: number) => n.toFixed(2);
 
 export async function seedDemo(adminDbUrl: string): Promise<void> {
   const scenario = buildDemoScenario();
-  // bcrypt is slow on purpose; hash before the transaction so its locks are held briefly.
-  const passwordHashes = await Promise.all(scenario.users.map(() => hashPassword(demoPassword)));
   const { conn, db } = await connect(adminDbUrl);
   try {
+    const [early] = await db.select({ n: count() }).from(users);
+    if ((early?.n ?? 0) > 0) throw new SeedRefusedError(early!.n);
+    // bcrypt is slow on purpose, so it runs before the transaction. Every demo user has the same
+    // published password, so one hash serves them all.
+    const passwordHash = await hashPassword(demoPassword);
     await db.transaction(async (tx) => {
+      // Checked again under lock: two seeds started at once must not both load.
       const [existing] = await tx.select({ n: count() }).from(users).for('update');
       if ((existing?.n ?? 0) > 0) throw new SeedRefusedError(existing!.n);
-      await loadScenario(tx, scenario, passwordHashes);
+      await loadScenario(tx, scenario, passwordHash);
     });
   } finally {
     await conn.end();
   }
 }
 
-async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHashes: string[]): Promise<void> {
+async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string): Promise<void> {
   const admin = scenario.users.find((u) => u.role === 'admin');
   if (!admin) throw new Error('the demo scenario has no administrator');
 
   const userIds = new Map<string, number>();
-  for (const [i, u] of scenario.users.entries()) {
+  for (const u of scenario.users) {
     const [row] = await tx
       .insert(users)
-      .values({ email: u.email, name: u.name, title: u.title, role: u.role, passwordHash: passwordHashes[i]! })
+      .values({ email: u.email, name: u.name, title: u.title, role: u.role, passwordHash })
       .$returningId();
     userIds.set(u.email, row!.id);
   }

@@ -64,7 +64,8 @@ interface ClaimedMail {
 }
 
 const now = sql`UTC_TIMESTAMP(3)`;
-const later = (ms: number) => sql`UTC_TIMESTAMP(3) + INTERVAL ${Math.max(0, Math.round(ms)) * 1000} MICROSECOND`;
+/** The database time `ms` milliseconds from now (negative: in the past). */
+const fromNow = (ms: number) => sql`UTC_TIMESTAMP(3) + INTERVAL ${Math.round(ms) * 1000} MICROSECOND`;
 const errorText = (err: unknown) => (err instanceof Error ? err.message : String(err)).slice(0, 1000);
 
 async function claim(database: Db, workerId: string, batchSize: number, staleAfterMs: number): Promise<ClaimedMail[]> {
@@ -87,7 +88,7 @@ async function claim(database: Db, workerId: string, batchSize: number, staleAft
         .where(
           or(
             and(eq(mailOutbox.status, 'pending'), lte(mailOutbox.nextAttemptAt, now)),
-            and(eq(mailOutbox.status, 'sending'), lt(mailOutbox.claimedAt, later(-staleAfterMs))),
+            and(eq(mailOutbox.status, 'sending'), lt(mailOutbox.claimedAt, fromNow(-staleAfterMs))),
           ),
         )
         .orderBy(asc(mailOutbox.id))
@@ -188,7 +189,7 @@ export async function runOutboxOnce(opts: OutboxRunOptions): Promise<OutboxRunRe
         .set(
           giveUp
             ? { status: 'failed', lastError: failure }
-            : { status: 'pending', claimedBy: null, claimedAt: null, lastError: failure, nextAttemptAt: later(retryDelay(mail.attempts)) },
+            : { status: 'pending', claimedBy: null, claimedAt: null, lastError: failure, nextAttemptAt: fromNow(Math.max(0, retryDelay(mail.attempts))) },
         )
         .where(mine(mail.id));
       await tx
