@@ -2,6 +2,7 @@ import 'server-only';
 import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import { type CurrentUser, requireUser } from './auth/session';
+import { parseInput } from './validation/parse';
 import {
   ConflictError,
   ForbiddenError,
@@ -11,6 +12,8 @@ import {
   ValidationError,
   isDomainError,
 } from './errors';
+
+export { parseInput };
 
 /*
  * The edge between the web and a command. Server actions and route handlers both parse their
@@ -76,17 +79,6 @@ function echoValues(raw: unknown): Record<string, string> | undefined {
     else if (typeof v === 'number' || typeof v === 'boolean') out[k] = String(v);
   }
   return out;
-}
-
-/** Parses with the schema or throws ValidationError carrying zod's per-field messages. */
-export function parseInput<S extends z.ZodType>(schema: S, raw: unknown): z.output<S> {
-  const result = schema.safeParse(raw);
-  if (result.success) return result.data;
-  const flat = z.flattenError(result.error);
-  const fieldErrors = Object.fromEntries(
-    Object.entries(flat.fieldErrors).filter((e): e is [string, string[]] => Array.isArray(e[1]) && e[1].length > 0),
-  );
-  throw new ValidationError(flat.formErrors[0] ?? 'Check the highlighted fields.', fieldErrors);
 }
 
 /**

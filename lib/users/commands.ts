@@ -1,6 +1,5 @@
 import 'server-only';
 import { and, asc, eq, sql } from 'drizzle-orm';
-import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
 import { users } from '../../db/schema';
 import { diffFields, writeAudit } from '../audit';
@@ -16,6 +15,7 @@ import {
   unlockUserSchema,
   userPatchSchema,
 } from '../validation/users';
+import { parseInput } from '../validation/parse';
 import { getUser, type UserDto } from './queries';
 
 /*
@@ -37,22 +37,6 @@ const auditedFields = ['email', 'name', 'title', 'role', 'active', 'lockedUntil'
 
 const auditView = (u: Pick<typeof users.$inferSelect, (typeof auditedFields)[number]>) =>
   Object.fromEntries(auditedFields.map((f) => [f, u[f]])) as Record<string, unknown>;
-
-/*
- * Same behaviour as parseInput in lib/define-action.ts, kept here because that module imports the
- * Auth.js session and these commands take their actor as an argument (and run under vitest).
- */
-function parse<T extends z.ZodType>(schema: T, input: unknown): z.output<T> {
-  const result = schema.safeParse(input);
-  if (!result.success) {
-    const { fieldErrors, formErrors } = z.flattenError(result.error);
-    throw new ValidationError(
-      formErrors[0] ?? 'Check the highlighted fields.',
-      Object.fromEntries(Object.entries(fieldErrors).filter((e): e is [string, string[]] => Array.isArray(e[1]) && e[1].length > 0)),
-    );
-  }
-  return result.data;
-}
 
 async function lockUser(tx: DbOrTx, userId: number) {
   const [row] = await tx.select().from(users).where(eq(users.id, userId)).for('update');
@@ -121,7 +105,7 @@ const emailTaken = 'Another account already uses this e-mail address.';
 
 export async function createUser(actor: UserActor, input: unknown, database: DbOrTx = db): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(createUserSchema, input);
+  const data = parseInput(createUserSchema, input);
   const passwordHash = await hashPassword(data.password);
   try {
     const id = await database.transaction(async (tx) => {
@@ -162,7 +146,7 @@ export async function changeUserRole(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(changeRoleSchema, input);
+  const data = parseInput(changeRoleSchema, input);
   await database.transaction(async (tx) => {
     if (data.role !== 'admin') await assertAnotherAdminRemains(tx, userId, lastAdminMessage, 'role');
     const before = await lockUser(tx, userId);
@@ -183,7 +167,7 @@ export async function deactivateUser(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(setActiveSchema, input);
+  const data = parseInput(setActiveSchema, input);
   if (userId === actor.id) {
     throw new ForbiddenError('You cannot deactivate your own account. Ask another administrator.');
   }
@@ -204,7 +188,7 @@ export async function reactivateUser(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(setActiveSchema, input);
+  const data = parseInput(setActiveSchema, input);
   await database.transaction(async (tx) => {
     const before = await lockUser(tx, userId);
     assertVersion(before, data.version);
@@ -225,7 +209,7 @@ export async function resetUserPassword(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(resetPasswordSchema, input);
+  const data = parseInput(resetPasswordSchema, input);
   const passwordHash = await hashPassword(data.password);
   await database.transaction(async (tx) => {
     const before = await lockUser(tx, userId);
@@ -243,7 +227,7 @@ export async function unlockUser(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const data = parse(unlockUserSchema, input);
+  const data = parseInput(unlockUserSchema, input);
   await database.transaction(async (tx) => {
     const before = await lockUser(tx, userId);
     assertVersion(before, data.version);
@@ -263,7 +247,7 @@ export async function updateUser(
   database: DbOrTx = db,
 ): Promise<UserDto> {
   assertCan(actor, 'users.manage');
-  const { action, ...rest } = parse(userPatchSchema, input);
+  const { action, ...rest } = parseInput(userPatchSchema, input);
   switch (action) {
     case 'change_role':
       return changeUserRole(actor, userId, rest, database);
