@@ -36,7 +36,7 @@ export function RingAuditTrail({ entries }: { entries: readonly AuditEntryDto[] 
       {entries.map((e) => (
         <li key={e.id} className="flex flex-col gap-1 px-4 py-3">
           <p className="flex flex-wrap gap-x-3">
-            <span className="font-semibold">{actionLabels[e.action] ?? e.action.replace(/_/g, ' ')}</span>
+            <span className="font-semibold">{actionLabels[e.action] ?? e.action.replace(/_/g, ' ').replace(/^./, (c) => c.toUpperCase())}</span>
             <span className="text-ink-600">
               {formatUtc(e.at, true)} · {e.userName}
             </span>

@@ -41,11 +41,15 @@ export const returnRingToServiceSchema = z.object({
 
 export const retireRingSchema = z.object({ id, version, reason, password });
 
-export const ringEventSchema = z.discriminatedUnion('event', [
-  quarantineRingSchema.extend({ event: z.literal('quarantine') }),
-  returnRingToServiceSchema.extend({ event: z.literal('return_to_service') }),
-  retireRingSchema.extend({ event: z.literal('retire') }),
-]);
+export const ringEventSchema = z.discriminatedUnion(
+  'event',
+  [
+    quarantineRingSchema.extend({ event: z.literal('quarantine') }),
+    returnRingToServiceSchema.extend({ event: z.literal('return_to_service') }),
+    retireRingSchema.extend({ event: z.literal('retire') }),
+  ],
+  { error: 'Name the action: quarantine, return_to_service or retire.' },
+);
 
 export type QuarantineRingInput = z.output<typeof quarantineRingSchema>;
 export type ReturnRingToServiceInput = z.output<typeof returnRingToServiceSchema>;

@@ -44,8 +44,12 @@ export async function makeMachine(overrides: Partial<typeof machines.$inferInser
   return { id: row!.id, assetTag };
 }
 
+/** One machine per test file holds its rings, so the Equipment page of the test database stays readable. */
+let sharedMachine: Promise<{ id: number; assetTag: string }> | undefined;
+
 export async function makeRing(overrides: Partial<typeof fillingRings.$inferInsert> = {}) {
-  const machineId = overrides.machineId ?? (await makeMachine()).id;
+  sharedMachine ??= makeMachine();
+  const machineId = overrides.machineId ?? (await sharedMachine).id;
   const serial = `IT-R-${unique()}`;
   const [row] = await db
     .insert(fillingRings)

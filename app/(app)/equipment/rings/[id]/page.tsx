@@ -20,7 +20,7 @@ import { submitRingEvent } from './actions';
 export const metadata: Metadata = { title: 'Filling ring' };
 
 const doneMessages: Record<RingEventType, string> = {
-  quarantine: 'The ring is quarantined. QA has been notified by e-mail.',
+  quarantine: 'The ring is quarantined. QA will be told by e-mail.',
   return_to_service: 'The ring is back in service. Your signature is recorded.',
   retire: 'The ring is retired. Your signature is recorded.',
 };
