@@ -25,10 +25,11 @@ async function counter(prefix: string, year: number): Promise<number> {
   return row?.v ?? 0;
 }
 
-async function unusedYear(): Promise<number> {
+/** A year with no number taken yet under this prefix. */
+async function unusedYear(prefix: string): Promise<number> {
   for (;;) {
     const year = 2100 + Math.floor(Math.random() * 7800);
-    if ((await counter('CAPA', year)) === 0) return year;
+    if ((await counter(prefix, year)) === 0) return year;
   }
 }
 
@@ -75,7 +76,7 @@ describe('record numbers', () => {
   });
 
   it('starts a new year at 0001 even when its first numbers are taken concurrently', async () => {
-    const year = await unusedYear();
+    const year = await unusedYear('CAPA');
     const { results } = await createMany(year, 20, 5);
     const created = results.flatMap((r) => (r.status === 'fulfilled' ? [r.value.record.number] : []));
     expect(created.sort()).toEqual(Array.from({ length: 20 }, (_, i) => `CAPA-${year}-${String(i + 1).padStart(4, '0')}`));
@@ -83,7 +84,7 @@ describe('record numbers', () => {
 
   it('does not deadlock when the creation that opened a new year rolls back while others wait', async () => {
     for (let round = 0; round < 5; round++) {
-      const year = await unusedYear();
+      const year = await unusedYear('DEV');
       const results = await Promise.allSettled(
         Array.from({ length: 12 }, (_, i) =>
           db.transaction(async (tx) => {
@@ -102,7 +103,7 @@ describe('record numbers', () => {
   });
 
   it('goes past 9999 with a fifth digit', async () => {
-    const year = await unusedYear();
+    const year = await unusedYear('DEV');
     await db.insert(recordCounters).values({ prefix: 'DEV', year, lastValue: 9998 });
     const numbers = [];
     for (let i = 0; i < 2; i++) numbers.push(await db.transaction((tx) => allocateNumber(tx, 'deviation', year)));
@@ -110,7 +111,7 @@ describe('record numbers', () => {
   });
 
   it('gives a number back when the creating transaction rolls back', async () => {
-    const year = await unusedYear();
+    const year = await unusedYear('CMP');
     await db
       .transaction(async (tx) => {
         expect(await allocateNumber(tx, 'complaint', year)).toBe(`CMP-${year}-0001`);
