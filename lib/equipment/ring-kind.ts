@@ -1,5 +1,5 @@
 import 'server-only';
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq, inArray, ne } from 'drizzle-orm';
 import { fillingRings, machines, users } from '../../db/schema';
 import { fillingRingMachine, ringGuardRefusals } from '../../workflows/filling-ring';
 import type { RingState } from '../../workflows/states';
@@ -75,7 +75,8 @@ export const ringKind = defineRecordKind({
   toDto: toRingDto,
   effects: {
     notifyQaOfQuarantine: {
-      // In the transaction: the message is queued if and only if the quarantine commits.
+      // In the transaction: the message is queued if and only if the quarantine commits. The person
+      // who quarantined the ring knows already, so they get no copy.
       async inTransaction(tx, { actor, after }) {
         const [machine] = await tx
           .select({ assetTag: machines.assetTag, name: machines.name, room: machines.room })
@@ -84,7 +85,9 @@ export const ringKind = defineRecordKind({
         const readers = await tx
           .select({ id: users.id, email: users.email })
           .from(users)
-          .where(and(eq(users.active, true), inArray(users.role, ['qa_investigator', 'qa_approver'])));
+          .where(
+            and(eq(users.active, true), inArray(users.role, ['qa_investigator', 'qa_approver']), ne(users.id, actor.id)),
+          );
         const env = getEnv();
         const where = machine ? `${machine.name} (${machine.assetTag}, ${machine.room})` : `machine #${after.machineId}`;
         const mail = renderMailLayout({

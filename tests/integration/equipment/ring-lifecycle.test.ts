@@ -64,17 +64,29 @@ describe('filling ring lifecycle', () => {
     );
   });
 
-  it('queues a message to every active QA reader when a ring is quarantined, in the same transaction', async () => {
-    const investigator = await makeUser('qa_investigator');
-    const supervisor = await makeUser('supervisor');
+  it('queues a message to every other active QA reader when a ring is quarantined, in the same transaction', async () => {
+    const [investigator, approver, supervisor] = await Promise.all([
+      makeUser('qa_investigator'),
+      makeUser('qa_approver'),
+      makeUser('supervisor'),
+    ]);
     const ring = await makeRing();
     await quarantineRing(supervisor, { id: ring.id, version: ring.version, reason: 'Burr on a bore' });
     const mail = await db
       .select()
       .from(mailOutbox)
       .where(and(eq(mailOutbox.recordType, 'filling_ring'), eq(mailOutbox.recordId, ring.id)));
-    expect(mail.map((m) => m.toUserId)).toContain(investigator.id);
+    expect(mail.map((m) => m.toUserId)).toEqual(expect.arrayContaining([investigator.id, approver.id]));
     expect(mail.map((m) => m.toUserId)).not.toContain(supervisor.id);
+
+    const other = await makeRing();
+    await quarantineRing(investigator, { id: other.id, version: other.version, reason: 'Dent' });
+    const second = await db
+      .select({ to: mailOutbox.toUserId })
+      .from(mailOutbox)
+      .where(and(eq(mailOutbox.recordType, 'filling_ring'), eq(mailOutbox.recordId, other.id)));
+    expect(second.map((m) => m.to)).toContain(approver.id);
+    expect(second.map((m) => m.to)).not.toContain(investigator.id);
     expect(mail[0]!.subject).toContain(ring.serial);
     expect(mail[0]!.textBody).toContain('Burr on a bore');
   });
