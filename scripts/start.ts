@@ -6,7 +6,7 @@ import { roleLabels, roles, type Role } from '../lib/auth/roles';
 import { prepareDatabase, type SeedOutcome } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';
-import { Teardown, type ServiceProcess } from './services/processes';
+import { Teardown, watchAncestors, type ServiceProcess } from './services/processes';
 import { startS3Fake } from './services/s3';
 import {
   appSettings,
@@ -41,14 +41,14 @@ let signalled: NodeJS.Signals | null = null;
 let resolveStop: (reason: string) => void = () => {};
 const stopRequested = new Promise<string>((resolve) => (resolveStop = resolve));
 
-function onSignal(signal: NodeJS.Signals) {
+function onSignal(signal: NodeJS.Signals, why: string = signal) {
   if (signalled) {
     say('still stopping, one moment ...');
     return;
   }
   signalled = signal;
   console.log('');
-  say(`${signal}: stopping ...`);
+  say(`${why}: stopping ...`);
   resolveStop(signal);
   // Interrupts whatever is starting right now (a build, the app) instead of waiting for it.
   void teardown.stopAll();
@@ -220,9 +220,10 @@ function explain(err: unknown): string {
 async function main(): Promise<number> {
   // The seed and the migrations import app modules marked server-only; see the preload's comment.
   await import('./services/server-only-preload.mjs');
-  process.on('SIGINT', onSignal);
-  process.on('SIGTERM', onSignal);
-  process.on('SIGHUP', onSignal);
+  process.on('SIGINT', () => onSignal('SIGINT'));
+  process.on('SIGTERM', () => onSignal('SIGTERM'));
+  process.on('SIGHUP', () => onSignal('SIGHUP'));
+  watchAncestors(3, () => onSignal('SIGHUP', 'the npm command that started this has ended'));
 
   let running: Awaited<ReturnType<typeof start>>;
   try {

@@ -5,7 +5,7 @@ import { EnvError } from '../lib/env';
 import { prepareDatabase } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';
-import { Teardown, runForeground } from './services/processes';
+import { Teardown, runForeground, watchAncestors } from './services/processes';
 import { startS3Fake } from './services/s3';
 import { appSettings, assertDistinctPorts, checkNodeVersion, childEnv, loadOrCreateSecrets, portSetting, withDatabase } from './services/settings';
 import { startSmtpFake } from './services/smtp';
@@ -108,11 +108,11 @@ interface PhaseResult {
 const teardown = new Teardown(say);
 let signalled: NodeJS.Signals | null = null;
 
-function onSignal(signal: NodeJS.Signals) {
+function onSignal(signal: NodeJS.Signals, why: string = signal) {
   if (signalled) return;
   signalled = signal;
   console.log('');
-  say(`${signal}: stopping ...`);
+  say(`${why}: stopping ...`);
   void teardown.stopAll();
 }
 
@@ -135,9 +135,10 @@ async function runVitest(projects: Project[], sel: Selection, env: NodeJS.Proces
 
 async function main(): Promise<number> {
   await import('./services/server-only-preload.mjs');
-  process.on('SIGINT', onSignal);
-  process.on('SIGTERM', onSignal);
-  process.on('SIGHUP', onSignal);
+  process.on('SIGINT', () => onSignal('SIGINT'));
+  process.on('SIGTERM', () => onSignal('SIGTERM'));
+  process.on('SIGHUP', () => onSignal('SIGHUP'));
+  watchAncestors(3, () => onSignal('SIGHUP', 'the npm command that started this has ended'));
 
   const started = Date.now();
   const results: PhaseResult[] = [];
@@ -154,6 +155,7 @@ async function main(): Promise<number> {
       if (!signalled) console.error(`\nplumbline test: ${name} failed.\n${explain(err)}\n`);
       note = signalled ? 'interrupted' : undefined;
     }
+    if (signalled) note = 'interrupted';
     results.push({ name, outcome, seconds: (Date.now() - t) / 1000, note });
     return outcome === 'passed';
   };

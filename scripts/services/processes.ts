@@ -1,5 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process';
-import { createWriteStream, mkdirSync, type WriteStream } from 'node:fs';
+import { createWriteStream, mkdirSync, readFileSync, type WriteStream } from 'node:fs';
 import path from 'node:path';
 import { createInterface } from 'node:readline';
 import { pidAlive, sleep } from './util';
@@ -185,4 +185,35 @@ export class Teardown {
       this.log(`could not stop ${step.name}: ${err instanceof Error ? err.message : String(err)}`);
     }
   }
+}
+
+function parentOf(pid: number): number | null {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    const ppid = Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]);
+    return Number.isInteger(ppid) ? ppid : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * Calls `onGone` when one of our nearest ancestors (tsx, the npm shell, npm) exits. A signal sent
+ * to npm alone reaches its `sh -c`, which does not pass it on, so without this watch the stack
+ * would outlive the command that started it.
+ */
+export function watchAncestors(levels: number, onGone: () => void): void {
+  const chain: number[] = [];
+  let pid: number | null = process.ppid;
+  while (chain.length < levels && pid !== null && pid > 1) {
+    chain.push(pid);
+    pid = parentOf(pid);
+  }
+  const timer = setInterval(() => {
+    if (chain.some((p) => !pidAlive(p))) {
+      clearInterval(timer);
+      onGone();
+    }
+  }, 1_000);
+  timer.unref();
 }

@@ -1,4 +1,5 @@
-import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import { mkdirSync, mkdtempSync } from 'node:fs';
+import { rm } from 'node:fs/promises';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -39,7 +40,11 @@ export async function launchBrowser(): Promise<BrowserContext> {
     timezoneId: 'UTC',
   });
   context.setDefaultTimeout(15_000);
-  context.on('close', () => rmSync(profile, { recursive: true, force: true }));
+  // Chromium may still be writing the profile as the context reports closed; a leftover temp folder
+  // is harmless, a failed test because of it is not.
+  context.on('close', () => {
+    void rm(profile, { recursive: true, force: true, maxRetries: 10, retryDelay: 200 }).catch(() => undefined);
+  });
   return context;
 }
 
