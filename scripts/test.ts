@@ -188,7 +188,10 @@ async function main(): Promise<number> {
   const appPort = ports.PLUMBLINE_TEST_APP_PORT;
   const appUrl = `http://localhost:${appPort}`;
   const mailDir = path.join(dataDir, 'mail');
-  const testEnvExtra = { PLUMBLINE_MAIL_DIR: mailDir, PLUMBLINE_E2E_BASE_URL: appUrl };
+  const browserProfiles = path.join(dataDir, 'browser-profiles');
+  const testEnvExtra = { PLUMBLINE_MAIL_DIR: mailDir, PLUMBLINE_E2E_BASE_URL: appUrl, PLUMBLINE_BROWSER_PROFILES: browserProfiles };
+  rmSync(browserProfiles, { recursive: true, force: true });
+  teardown.add('browser profiles', async () => rmSync(browserProfiles, { recursive: true, force: true }), { quiet: true });
 
   let itEnv: NodeJS.ProcessEnv = childEnv({}, { NODE_ENV: 'test' });
   let e2eSettings: Record<string, string> | null = null;

@@ -27,9 +27,11 @@ const chromiumFlags = [
   '--disable-sync',
 ];
 
-/** A fresh browser profile; closing the context deletes it. */
+/** A fresh browser profile; closing the context deletes it (and npm test empties the folder each run). */
 export async function launchBrowser(): Promise<BrowserContext> {
-  const profile = mkdtempSync(path.join(os.tmpdir(), 'plumbline-e2e-'));
+  const parent = process.env.PLUMBLINE_BROWSER_PROFILES ?? os.tmpdir();
+  mkdirSync(parent, { recursive: true });
+  const profile = mkdtempSync(path.join(parent, 'plumbline-e2e-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: chromiumPath,
     headless: true,
