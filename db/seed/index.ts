@@ -5,8 +5,8 @@ import { writeAudit, type AuditActor } from '../../lib/audit';
 import { hashPassword } from '../../lib/auth/passwords';
 import type { RecordType } from '../../lib/records/types';
 import { connect, type Tx } from '../client';
-import { batches, capsuleDefects, fillingRings, machines, products, settings, users } from '../schema';
-import { buildDemoScenario, type DemoScenario } from './scenario';
+import { batches, capsuleDefects, fillingRings, machines, products, settings, stateHistory, users } from '../schema';
+import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario';
 import { demoPassword } from './demo-users';
 
 /*
@@ -122,6 +122,17 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
     const [row] = await tx.insert(fillingRings).values(values).$returningId();
     ringIds.set(r.serial, row!.id);
     await created('filling_ring', row!.id, values);
+    // Rings are workflow records: their timeline starts with the state they were registered in.
+    await tx.insert(stateHistory).values({
+      recordType: 'filling_ring',
+      recordId: row!.id,
+      event: 'create',
+      fromState: null,
+      toState: r.status,
+      userId: actor.id!,
+      comment: r.statusReason ?? seedAuditAction,
+      at: new Date(`${scenarioStart}T06:00:00.000Z`),
+    });
   }
 
   for (const d of scenario.defects) {
