@@ -1,9 +1,12 @@
 import 'server-only';
-import { eq } from 'drizzle-orm';
-import { db, type DbOrTx } from '../../db/client';
+import { and, eq, ne } from 'drizzle-orm';
+import { db, type DbOrTx, type Tx } from '../../db/client';
 import { users } from '../../db/schema';
 import { writeAudit } from '../audit';
+import { getEnv } from '../env';
 import { ValidationError } from '../errors';
+import { enqueueMail } from '../mail/outbox';
+import { renderMailLayout } from '../mail/templates/layout';
 import { afterFailure, isLocked, lockMinutes, maxConsecutiveFailures } from './lockout';
 import { decoyHash, verifyPassword } from './passwords';
 import type { Role } from './roles';
@@ -19,6 +22,48 @@ export interface AuthenticatedUser {
   email: string;
   name: string;
   role: Role;
+}
+
+/*
+ * 21 CFR 11.300(d) asks that attempted unauthorised use be reported "in an immediate and urgent
+ * manner": every active administrator is e-mailed through the outbox, in the same transaction as
+ * the lock, so the notice goes if and only if the lock is recorded.
+ */
+async function notifyAdministratorsOfLock(
+  tx: Tx,
+  user: { id: number; name: string; email: string },
+  lockedUntil: Date,
+  purpose: 'sign_in' | 'signature',
+): Promise<void> {
+  const admins = await tx
+    .select({ id: users.id, email: users.email })
+    .from(users)
+    .where(and(eq(users.active, true), eq(users.role, 'admin'), ne(users.id, user.id)));
+  const env = getEnv();
+  const what = purpose === 'sign_in' ? 'sign-in attempts' : 'password entries for an electronic signature';
+  const mail = renderMailLayout({
+    siteName: env.SITE_NAME,
+    heading: `Account locked: ${user.name}`,
+    paragraphs: [
+      `The account of ${user.name} (${user.email}) was locked after ${maxConsecutiveFailures} consecutive failed ${what}.`,
+      `It unlocks by itself at ${lockedUntil.toISOString().replace('T', ' ').slice(0, 16)} UTC, or an administrator can unlock it sooner.`,
+      'If the account holder did not make these attempts, treat it as attempted unauthorised use and follow the site procedure.',
+    ],
+    link: { url: new URL(`/admin/users/${user.id}`, env.APP_URL).toString(), label: 'Open the account' },
+    footer: 'You receive this because you are a Plumbline administrator.',
+  });
+  for (const admin of admins) {
+    await enqueueMail(tx, {
+      dedupeKey: `account-locked:${user.id}:${lockedUntil.getTime()}:${admin.id}`,
+      template: 'account_locked',
+      to: { address: admin.email, userId: admin.id },
+      subject: `Account locked after failed attempts: ${user.name}`,
+      text: mail.text,
+      html: mail.html,
+      recordType: 'user',
+      recordId: user.id,
+    });
+  }
 }
 
 type Outcome = 'ok' | 'wrong_password' | 'locked' | 'inactive';
@@ -77,6 +122,7 @@ async function attempt(
         changes: [{ field: 'lockedUntil', from: user.lockedUntil, to: next.lockedUntil }],
         reason: `${maxConsecutiveFailures} consecutive failed password entries; locked for ${lockMinutes} minutes`,
       });
+      await notifyAdministratorsOfLock(tx, user, next.lockedUntil, purpose);
     }
     return { outcome: 'wrong_password' as const };
   });

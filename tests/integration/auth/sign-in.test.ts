@@ -1,7 +1,7 @@
 import { and, desc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/db/client';
-import { auditEntries, users } from '@/db/schema';
+import { auditEntries, mailOutbox, users } from '@/db/schema';
 import { verifyCredentials, verifySignaturePassword } from '@/lib/auth/credentials';
 import { hashPassword } from '@/lib/auth/passwords';
 import { ValidationError } from '@/lib/errors';
@@ -70,6 +70,20 @@ describe('sign-in and lock-out', () => {
     expect(actions.filter((a) => a === 'sign_in_failed')).toHaveLength(5);
     expect(actions).toContain('account_locked');
     expect(actions[0]).toBe('sign_in_refused_locked');
+
+    // 11.300(d): attempts are reported "in an immediate and urgent manner" — every active
+    // administrator gets a notice queued with the lock.
+    const notices = await db
+      .select({ to: mailOutbox.toAddress, template: mailOutbox.template })
+      .from(mailOutbox)
+      .where(and(eq(mailOutbox.recordType, 'user'), eq(mailOutbox.recordId, u.id)));
+    const admins = await db
+      .select({ email: users.email })
+      .from(users)
+      .where(and(eq(users.role, 'admin'), eq(users.active, true)));
+    expect(admins.length).toBeGreaterThan(0);
+    expect(notices.map((n) => n.to).sort()).toEqual(admins.map((a) => a.email).sort());
+    expect(notices.every((n) => n.template === 'account_locked')).toBe(true);
   });
 
   it('lets the user back in once the lock has expired, and a success resets the count', async () => {
