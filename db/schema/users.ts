@@ -17,6 +17,8 @@ export const users = mysqlTable(
     lockedUntil: utc('locked_until'),
     lastSigninAt: utc('last_signin_at'),
     passwordChangedAt: utc('password_changed_at'),
+    /** Set when an administrator chose the password; the person must pick their own before working. */
+    mustChangePassword: boolean('must_change_password').notNull().default(false),
     version: version(),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
