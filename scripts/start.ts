@@ -1,9 +1,9 @@
-import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { EnvError } from '../lib/env';
-import { roleLabels, roles, type Role } from '../lib/auth/roles';
-import { prepareDatabase, type SeedOutcome } from './services/database';
+import { roleLabels } from '../lib/auth/roles';
+import { demoPassword, demoUsers } from '../db/seed/demo-users';
+import { prepareDatabase } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';
 import { Teardown, watchAncestors, type ServiceProcess } from './services/processes';
@@ -30,12 +30,6 @@ const dataDir = path.join(root, '.data', 'demo');
 const rel = (p: string) => path.relative(process.cwd(), p) || '.';
 const say = (line: string) => console.log(`plumbline: ${line}`);
 
-interface DemoSignIn {
-  email: string;
-  name: string;
-  role: Role;
-}
-
 const teardown = new Teardown(say);
 let signalled: NodeJS.Signals | null = null;
 let resolveStop: (reason: string) => void = () => {};
@@ -54,48 +48,22 @@ function onSignal(signal: NodeJS.Signals, why: string = signal) {
   void teardown.stopAll();
 }
 
-async function demoSignIns(): Promise<{ password: string; users: DemoSignIn[] } | null> {
-  try {
-    const mod = await import('../db/seed/demo-users');
-    return { password: mod.demoPassword, users: [...mod.demoUsers] };
-  } catch {
-    // Fall back to the table in DEVELOPERS.md so the banner still helps.
-  }
-  const doc = path.join(root, 'DEVELOPERS.md');
-  if (!existsSync(doc)) return null;
-  const text = readFileSync(doc, 'utf8');
-  const password = /password `([^`]+)`/.exec(text)?.[1];
-  const users: DemoSignIn[] = [];
-  for (const m of text.matchAll(/^\|\s*([^|]+?)\s*\|\s*(\S+@brackwater\.example)\s*\|\s*([^|]+?)\s*\|$/gm)) {
-    const label = m[1]!.replace(/\s*\(.*\)$/, '');
-    const role = roles.find((r) => roleLabels[r].toLowerCase() === label.toLowerCase() || r === label);
-    if (role) users.push({ email: m[2]!, name: m[3]!, role });
-  }
-  return password && users.length ? { password, users } : null;
-}
-
 function banner(opts: {
   appUrl: string;
   viewerUrl: string;
   mailDir: string;
   dbPort: number;
   s3Port: number;
-  signIns: { password: string; users: DemoSignIn[] } | null;
-  seed: SeedOutcome;
   worker: boolean;
   seconds: number;
 }) {
   const line = '─'.repeat(78);
   const out: string[] = [line, `  Plumbline is running (demo: Brackwater Capsule Co.)   ready in ${opts.seconds.toFixed(1)} s`, ''];
   out.push(`  Open        ${opts.appUrl}`);
-  if (opts.signIns && opts.seed !== 'no-seed') {
-    out.push(`  Sign in as  (every demo user's password: ${opts.signIns.password})`);
-    const width = Math.max(...opts.signIns.users.map((u) => u.email.length));
-    for (const u of opts.signIns.users) {
-      out.push(`              ${u.email.padEnd(width)}  ${roleLabels[u.role].padEnd(16)} ${u.name}`);
-    }
-  } else {
-    out.push('  Sign in as  (no demo users: the demo data was not loaded, see above)');
+  out.push(`  Sign in as  (every demo user's password: ${demoPassword})`);
+  const width = Math.max(...demoUsers.map((u) => u.email.length));
+  for (const u of demoUsers) {
+    out.push(`              ${u.email.padEnd(width)}  ${roleLabels[u.role].padEnd(16)} ${u.name}`);
   }
   out.push('');
   out.push(`  Mail        nothing leaves this machine; read it at ${opts.viewerUrl}`);
@@ -151,7 +119,7 @@ async function start(): Promise<{ app: ServiceProcess; worker: ServiceProcess | 
   if (teardown.closed) throw new StartError('stopped');
 
   say('applying database migrations ...');
-  const seed = await prepareDatabase({ root, adminUrl: mariadb.adminUrl, appUrl: mariadb.appUrl, log: say });
+  const seed = await prepareDatabase({ adminUrl: mariadb.adminUrl, appUrl: mariadb.appUrl });
   if (seed === 'seeded') say('loaded the Brackwater Capsule Co. demo data');
   if (seed === 'kept') say('database already has users: keeping its data (delete .data/demo/ for a fresh demo)');
 
@@ -199,8 +167,6 @@ async function start(): Promise<{ app: ServiceProcess; worker: ServiceProcess | 
     mailDir,
     dbPort: ports.PLUMBLINE_DB_PORT,
     s3Port: ports.PLUMBLINE_S3_PORT,
-    signIns: await demoSignIns(),
-    seed,
     worker: worker !== null,
     seconds: (Date.now() - started) / 1000,
   });

@@ -243,9 +243,7 @@ async function main(): Promise<number> {
         it: { adminUrl: mariadb.adminUrl, appUrl: mariadb.appUrl },
         e2e: { adminUrl: withDatabase(mariadb.adminUrl, 'plumbline_e2e'), appUrl: withDatabase(mariadb.appUrl, 'plumbline_e2e') },
       };
-      const outcomes = await Promise.all(
-        Object.values(databases).map((d) => prepareDatabase({ root, ...d, log: say })),
-      );
+      await Promise.all(Object.values(databases).map((d) => prepareDatabase(d)));
 
       rmSync(path.join(dataDir, 's3'), { recursive: true, force: true });
       rmSync(mailDir, { recursive: true, force: true });
@@ -270,9 +268,7 @@ async function main(): Promise<number> {
         databaseAdminUrl: databases.e2e.adminUrl,
         nodeEnv: 'production',
       });
-      return outcomes.every((o) => o === 'seeded')
-        ? 'passed'
-        : { outcome: 'passed', note: 'demo data not loaded (see above)' };
+      return 'passed';
     });
     if (!ok) {
       if (wantsUnitOrIntegration.length) skip('unit + integration tests', 'services did not start');

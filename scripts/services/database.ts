@@ -1,13 +1,11 @@
-import { existsSync } from 'node:fs';
-import path from 'node:path';
-
 /*
  * Bringing a database up to date for the local stacks: the committed migrations and the app user's
  * grants (db/migrate.ts), then the demo scenario (db/seed) when the database has no users yet.
- * Callers must have loaded server-only-preload.mjs first: the seed imports app modules.
+ * The imports are dynamic on purpose: callers load server-only-preload.mjs first, because the seed
+ * imports app modules marked server-only.
  */
 
-export type SeedOutcome = 'seeded' | 'kept' | 'no-seed';
+export type SeedOutcome = 'seeded' | 'kept';
 
 async function countUsers(adminUrl: string): Promise<number> {
   const { connect } = await import('../../db/client');
@@ -20,27 +18,11 @@ async function countUsers(adminUrl: string): Promise<number> {
   }
 }
 
-export async function prepareDatabase(opts: {
-  root: string;
-  adminUrl: string;
-  appUrl: string;
-  log: (line: string) => void;
-}): Promise<SeedOutcome> {
+export async function prepareDatabase(opts: { adminUrl: string; appUrl: string }): Promise<SeedOutcome> {
   const { migrateDatabase } = await import('../../db/migrate');
   await migrateDatabase(opts.adminUrl, opts.appUrl);
   if ((await countUsers(opts.adminUrl)) > 0) return 'kept';
-
-  const seedFile = path.join(opts.root, 'db', 'seed', 'index.ts');
-  if (!existsSync(seedFile)) {
-    opts.log('demo data NOT loaded: db/seed/index.ts does not exist yet; the database stays empty.');
-    return 'no-seed';
-  }
-  const seedModule: unknown = await import(seedFile);
-  const seedDemo = (seedModule as { seedDemo?: unknown }).seedDemo;
-  if (typeof seedDemo !== 'function') {
-    opts.log('demo data NOT loaded: db/seed/index.ts does not export seedDemo(adminDbUrl).');
-    return 'no-seed';
-  }
-  await (seedDemo as (adminDbUrl: string) => Promise<void>)(opts.adminUrl);
+  const { seedDemo } = await import('../../db/seed/index');
+  await seedDemo(opts.adminUrl);
   return 'seeded';
 }
