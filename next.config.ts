@@ -3,9 +3,10 @@ import { getEnv } from './lib/env';
 
 // Validate every setting once at build and at start: a bad configuration fails here with a message
 // naming each setting, not later inside a request.
-getEnv();
+const env = getEnv();
 
 const nextConfig: NextConfig = {
+  distDir: env.NEXT_DIST_DIR,
   reactStrictMode: true,
   poweredByHeader: false,
   serverExternalPackages: ['mysql2', 'bcryptjs', 'minio', 'nodemailer'],

@@ -45,6 +45,11 @@ export const envSchema = z.object({
   SMTP_USER: z.string().optional(),
   SMTP_PASSWORD: z.string().optional(),
   MAIL_FROM: z.string().min(3).default('Plumbline <quality@plumbline.invalid>'),
+  /** Build output folder, relative to the project; the test stack builds into its own. */
+  NEXT_DIST_DIR: z
+    .string()
+    .regex(/^\.next[A-Za-z0-9_-]*$/, 'must be a folder name starting with .next, e.g. .next-test')
+    .default('.next'),
 });
 
 export type Env = z.infer<typeof envSchema>;

@@ -1,4 +1,4 @@
-import { existsSync, readFileSync, readdirSync, rmSync } from 'node:fs';
+import { existsSync, readdirSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { EnvError } from '../lib/env';
@@ -9,7 +9,7 @@ import { Teardown, runForeground, watchAncestors } from './services/processes';
 import { startS3Fake } from './services/s3';
 import { appSettings, assertDistinctPorts, checkNodeVersion, childEnv, loadOrCreateSecrets, portSetting, withDatabase } from './services/settings';
 import { startSmtpFake } from './services/smtp';
-import { StartError, assertPortFree, ensureDebianPackages, pidAlive } from './services/util';
+import { StartError, assertPortFree, ensureDebianPackages } from './services/util';
 
 /*
  * `npm test`: unit and integration tests, then the browser tests against a production build, on a
@@ -267,6 +267,7 @@ async function main(): Promise<number> {
         databaseUrl: databases.e2e.appUrl,
         databaseAdminUrl: databases.e2e.adminUrl,
         nodeEnv: 'production',
+        distDir: '.next-test',
       });
       return 'passed';
     });
@@ -286,10 +287,6 @@ async function main(): Promise<number> {
   if (wantsE2e && e2eSettings && !signalled) {
     const settings: Record<string, string> = e2eSettings;
     const appEnv = childEnv(settings);
-    const demoDb = path.join(root, '.data', 'demo', 'mariadb.pid');
-    if (existsSync(demoDb) && pidAlive(Number(readFileSync(demoDb, 'utf8').trim()))) {
-      say('note: npm start is running; this build replaces .next, so restart npm start afterwards.');
-    }
     const built = await phase('build the app (next build)', async () => {
       const { built } = await ensureBuild({
         root,

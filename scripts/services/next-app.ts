@@ -24,7 +24,7 @@ function buildInputFiles(root: string): string[] {
   });
   if (git.status === 0) return git.stdout.split('\0').filter(Boolean);
   // Not a git checkout (e.g. an unpacked archive): walk the tree instead.
-  const skip = new Set(['node_modules', '.next', '.data', '.git', 'coverage']);
+  const skip = new Set(['node_modules', '.next', '.next-test', '.data', '.git', 'coverage']);
   const files: string[] = [];
   const walk = (rel: string) => {
     for (const entry of readdirSync(path.join(root, rel), { withFileTypes: true })) {
@@ -65,8 +65,8 @@ interface BuildRecord {
   buildId: string;
 }
 
-function readBuildId(root: string): string | null {
-  const file = path.join(root, '.next', 'BUILD_ID');
+function readBuildId(root: string, distDir: string): string | null {
+  const file = path.join(root, distDir, 'BUILD_ID');
   return existsSync(file) ? readFileSync(file, 'utf8').trim() : null;
 }
 
@@ -85,10 +85,11 @@ export interface EnsureBuildOptions {
 export async function ensureBuild(opts: EnsureBuildOptions): Promise<{ built: boolean; seconds: number }> {
   const started = Date.now();
   const fingerprint = buildFingerprint(opts.root, opts.settings);
+  const distDir = opts.settings.NEXT_DIST_DIR ?? '.next';
   if (!opts.force && existsSync(opts.recordFile)) {
     try {
       const record = JSON.parse(readFileSync(opts.recordFile, 'utf8')) as BuildRecord;
-      const current = readBuildId(opts.root);
+      const current = readBuildId(opts.root, distDir);
       if (record.fingerprint === fingerprint && current !== null && record.buildId === current) {
         opts.log('sources unchanged since the last build: skipping next build');
         return { built: false, seconds: (Date.now() - started) / 1000 };
@@ -102,7 +103,7 @@ export async function ensureBuild(opts: EnsureBuildOptions): Promise<{ built: bo
   const code = await runForeground(process.execPath, [nextBin, 'build'], { cwd: opts.root, env: opts.env }, opts.teardown);
   if (opts.teardown.closed) throw new StartError('stopped while building');
   if (code !== 0) throw new StartError(`next build failed (exit ${code}); the reason is in the build output above.`);
-  const buildId = readBuildId(opts.root);
+  const buildId = readBuildId(opts.root, distDir);
   if (buildId) writeFileSync(opts.recordFile, JSON.stringify({ fingerprint, buildId } satisfies BuildRecord));
   return { built: true, seconds: (Date.now() - started) / 1000 };
 }

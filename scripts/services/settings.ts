@@ -80,6 +80,8 @@ export interface AppSettingsInput {
   s3: { endpoint: string; port: number; accessKey: string; secretKey: string; bucket: string };
   smtpPort: number;
   nodeEnv: 'production' | 'test';
+  /** Build folder; the test stack uses its own so it never replaces the demo's build. */
+  distDir?: string;
 }
 
 /** The app's settings (lib/env names). SITE_NAME and MAIL_FROM may be overridden from the shell. */
@@ -104,6 +106,7 @@ export function appSettings(input: AppSettingsInput): Record<string, string> {
     SMTP_PORT: String(input.smtpPort),
     SMTP_SECURE: 'false',
     MAIL_FROM: process.env.MAIL_FROM || mailFrom,
+    NEXT_DIST_DIR: input.distDir ?? '.next',
   };
   parseEnv(settings);
   return settings;
