@@ -1,7 +1,7 @@
 import 'server-only';
 import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
-import { type CurrentUser, requireUser } from './auth/session';
+import { type CurrentUser, type PasswordChangeOption, requireUser } from './auth/session';
 import { parseInput } from './validation/parse';
 import {
   ConflictError,
@@ -83,17 +83,19 @@ function echoValues(raw: unknown): Record<string, string> | undefined {
 
 /**
  * Wraps a command for a server action: `const run = defineAction(schema, (input, user) => cmd(user, input))`;
- * `run(formData)` resolves to an ActionResult and never throws.
+ * `run(formData)` resolves to an ActionResult and never throws. `options` goes to requireUser: only
+ * the change-password action passes `allowPasswordChange`.
  */
 export function defineAction<S extends z.ZodType, T>(
   schema: S,
   command: (input: z.output<S>, user: CurrentUser) => Promise<T>,
+  options: PasswordChangeOption = {},
 ): (input: FormData | Record<string, unknown>) => Promise<ActionResult<T>> {
   return async (input) => {
     const raw = input instanceof FormData ? formDataToObject(input) : input;
     try {
       const parsed = parseInput(schema, raw);
-      const user = await requireUser();
+      const user = await requireUser(options);
       return { ok: true, data: await command(parsed, user) };
     } catch (err) {
       const { message, fieldErrors } = describeError(err);

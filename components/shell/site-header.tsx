@@ -4,7 +4,8 @@ import { Wordmark } from './wordmark';
 
 /*
  * The app header: mark, site, who is signed in (every action is attributed to this person,
- * 21 CFR 11.10(e)), sign-out, and the section links. Wraps to two rows on a portrait tablet.
+ * 21 CFR 11.10(e)), their password page, sign-out, and the section links. Wraps to two rows on a
+ * portrait tablet.
  */
 
 export function SiteHeader({
@@ -34,6 +35,12 @@ export function SiteHeader({
             <span className="font-semibold">{userName}</span>
             <span className="text-sm text-ink-300">{roleLabel}</span>
           </p>
+          <Link
+            href="/account/password"
+            className="inline-flex min-h-11 items-center rounded-md px-3 font-semibold text-white underline underline-offset-4 hover:bg-ink-700"
+          >
+            Change password
+          </Link>
           <form action={signOutAction}>
             <button
               type="submit"

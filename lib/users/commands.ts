@@ -3,11 +3,13 @@ import { and, asc, eq, sql } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
 import { users } from '../../db/schema';
 import { diffFields, writeAudit } from '../audit';
+import { verifySignaturePassword } from '../auth/credentials';
 import { hashPassword } from '../auth/passwords';
 import { assertCan, type Actor } from '../auth/permissions';
 import { roleLabels } from '../auth/roles';
 import { ConflictError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
 import {
+  changeOwnPasswordSchema,
   changeRoleSchema,
   createUserSchema,
   resetPasswordSchema,
@@ -20,7 +22,8 @@ import { getUser, type UserDto } from './queries';
 
 /*
  * User administration. Each command takes the acting user (callers obtain it with requireUser(),
- * which re-reads role and active flag from the database), checks users.manage, and makes its change
+ * which re-reads role and active flag from the database), checks users.manage (all but
+ * changeOwnPassword, which touches only the actor's own account), and makes its change
  * in one transaction with the audit entry (21 CFR 11.10(e); EU GMP Annex 11 §12.3 on recording
  * who created, changed or cancelled access). Users are never deleted, only deactivated, so every
  * audit entry and signature keeps pointing at a real person (21 CFR 11.10(e), 11.50).
@@ -33,7 +36,16 @@ export interface UserActor extends Actor {
 }
 
 /** The fields whose changes the audit trail records. Never the password hash. */
-const auditedFields = ['email', 'name', 'title', 'role', 'active', 'lockedUntil', 'failedSignins'] as const;
+const auditedFields = [
+  'email',
+  'name',
+  'title',
+  'role',
+  'active',
+  'lockedUntil',
+  'failedSignins',
+  'mustChangePassword',
+] as const;
 
 const auditView = (u: Pick<typeof users.$inferSelect, (typeof auditedFields)[number]>) =>
   Object.fromEntries(auditedFields.map((f) => [f, u[f]])) as Record<string, unknown>;
@@ -120,6 +132,8 @@ export async function createUser(actor: UserActor, input: unknown, database: DbO
         passwordHash,
         active: true,
         passwordChangedAt: now,
+        // The administrator chose this password, so it is not yet the person's own.
+        mustChangePassword: true,
       };
       const [inserted] = await tx.insert(users).values(values).$returningId();
       const userId = inserted!.id;
@@ -128,7 +142,7 @@ export async function createUser(actor: UserActor, input: unknown, database: DbO
         recordType: 'user',
         recordId: userId,
         action: 'user_created',
-        changes: diffFields(null, values, ['email', 'name', 'title', 'role', 'active']),
+        changes: diffFields(null, values, ['email', 'name', 'title', 'role', 'active', 'mustChangePassword']),
       });
       return userId;
     });
@@ -199,8 +213,9 @@ export async function reactivateUser(
 }
 
 /**
- * Sets a temporary password chosen by the administrator. The audit entry records that a reset
- * happened and when, never the hash or the password.
+ * Sets a temporary password chosen by the administrator, which the person must replace with their
+ * own before working on. The audit entry records that a reset happened and when, never the hash or
+ * the password.
  */
 export async function resetUserPassword(
   actor: UserActor,
@@ -214,7 +229,14 @@ export async function resetUserPassword(
   await database.transaction(async (tx) => {
     const before = await lockUser(tx, userId);
     assertVersion(before, data.version);
-    await bumpAndAudit(tx, actor, before, { passwordHash, passwordChangedAt: new Date() }, 'password_reset', data.reason);
+    await bumpAndAudit(
+      tx,
+      actor,
+      before,
+      { passwordHash, passwordChangedAt: new Date(), mustChangePassword: true },
+      'password_reset',
+      data.reason,
+    );
   });
   return reload(userId, database);
 }
@@ -237,6 +259,48 @@ export async function unlockUser(
     await bumpAndAudit(tx, actor, before, { lockedUntil: null, failedSignins: 0 }, 'unlocked', data.reason);
   });
   return reload(userId, database);
+}
+
+const passwordChangedElsewhere =
+  'Your account was changed while you were typing (perhaps an administrator reset the password). Sign in again and retry.';
+
+/**
+ * A person replaces their own password; no permission is needed beyond being signed in, and the
+ * change is always to the actor's own account. The current password is checked first, outside any
+ * transaction, so a wrong one counts toward the lock-out and is audited even though nothing else
+ * happens (21 CFR 11.300(d)).
+ */
+export async function changeOwnPassword(actor: UserActor, input: unknown, database: DbOrTx = db): Promise<UserDto> {
+  const data = parseInput(changeOwnPasswordSchema, input);
+  const [seen] = await database.select({ version: users.version }).from(users).where(eq(users.id, actor.id)).limit(1);
+  if (!seen) throw new NotFoundError('Your account');
+  try {
+    await verifySignaturePassword(actor.id, data.currentPassword);
+  } catch (err) {
+    if (!(err instanceof ValidationError)) throw err;
+    // The check is shared with electronic signatures; say what was refused here instead.
+    const message = (err.fieldErrors.password?.[0] ?? err.message).replace(
+      'Nothing was signed.',
+      'Your password was not changed.',
+    );
+    throw new ValidationError(message, { currentPassword: [message] });
+  }
+  const passwordHash = await hashPassword(data.newPassword);
+  await database.transaction(async (tx) => {
+    const before = await lockUser(tx, actor.id);
+    // A reset or other change between the check and this lock would otherwise be overwritten by a
+    // password that was verified against the old state of the account.
+    if (before.version !== seen.version) throw new ConflictError(passwordChangedElsewhere);
+    await bumpAndAudit(
+      tx,
+      actor,
+      before,
+      { passwordHash, mustChangePassword: false, passwordChangedAt: new Date() },
+      'password_changed',
+      undefined,
+    );
+  });
+  return reload(actor.id, database);
 }
 
 /** One entry point for PATCH /api/users/:id, dispatching on `action`. */

@@ -58,6 +58,38 @@ export const userPatchSchema = z.discriminatedUnion('action', [
 export type UserPatchInput = z.input<typeof userPatchSchema>;
 export type UserPatchAction = z.output<typeof userPatchSchema>['action'];
 
+/*
+ * A person replacing their own password. The current one proves it is them at the keyboard
+ * (21 CFR 11.300(b)); the new one follows the same rules an administrator's does, is typed twice so
+ * a slip does not lock them out, and must differ from the current one, which after a reset is the
+ * temporary password an administrator chose.
+ */
+const requiredPassword = (message: string) => z.string({ error: message }).min(1, message);
+
+export const changeOwnPasswordSchema = z
+  .object({
+    currentPassword: requiredPassword('Enter your current password.'),
+    newPassword: password,
+    confirmPassword: requiredPassword('Type the new password again.'),
+  })
+  .refine((p) => p.confirmPassword === p.newPassword, {
+    path: ['confirmPassword'],
+    message: 'This does not match the new password. Type it again.',
+    // Checked as soon as both are strings, so a mismatch is reported together with any other problem.
+    when: (payload) => bothStrings(payload.value, 'newPassword', 'confirmPassword'),
+  })
+  .refine((p) => p.newPassword !== p.currentPassword, {
+    path: ['newPassword'],
+    message: 'Choose a password different from your current one.',
+    when: (payload) => bothStrings(payload.value, 'newPassword', 'currentPassword'),
+  });
+export type ChangeOwnPasswordInput = z.input<typeof changeOwnPasswordSchema>;
+
+function bothStrings(value: unknown, a: string, b: string): boolean {
+  const v = value as Record<string, unknown> | null;
+  return typeof v?.[a] === 'string' && typeof v?.[b] === 'string' && v[a] !== '' && v[b] !== '';
+}
+
 export const listUsersQuerySchema = z.object({
   page: z.coerce.number().int().min(1).catch(1),
 });

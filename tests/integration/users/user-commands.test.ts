@@ -97,6 +97,8 @@ describe('creating a user', () => {
       name: [null, input.name],
       role: [null, 'operator'],
       title: [null, input.title],
+      // The administrator chose the password, so the person must replace it (21 CFR 11.300(b); common practice).
+      mustChangePassword: [null, true],
     });
 
     // The new person can sign in with the password the administrator set.
@@ -112,7 +114,9 @@ describe('creating a user', () => {
     const stored = JSON.stringify(entry);
     expect(stored).not.toContain(row.passwordHash);
     expect(stored).not.toContain(String(input.password));
-    expect(stored.toLowerCase()).not.toContain('password');
+    // The only password-related field recorded is the yes/no mark that it must be replaced.
+    const fields = (JSON.parse(entry!.changes) as { field: string; to: unknown }[]).filter((c) => /password/i.test(c.field));
+    expect(fields).toEqual([{ field: 'mustChangePassword', from: null, to: true }]);
   });
 
   it('refuses a QA approver, and creates nothing (21 CFR 11.10(d), 11.10(g))', async () => {
