@@ -9,6 +9,7 @@ export interface UserRowView {
   email: string;
   roleLabel: string;
   active: boolean;
+  mustChangePassword: boolean;
   lockedUntil: string | null;
   lastSigninAt: string | null;
 }
@@ -44,6 +45,9 @@ export function UserTable({ users, now }: { users: readonly UserRowView[]; now: 
               <td className="px-4 py-2">{u.roleLabel}</td>
               <td className="px-4 py-2">
                 <ActiveBadge active={u.active} />
+                {u.mustChangePassword ? (
+                  <span className="mt-1 block text-sm text-ink-700">Temporary password: must choose their own</span>
+                ) : null}
               </td>
               <td className="px-4 py-2">
                 <LockBadge lockedUntil={u.lockedUntil} now={now} />

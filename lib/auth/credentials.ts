@@ -24,6 +24,15 @@ export interface AuthenticatedUser {
   role: Role;
 }
 
+/** What the password was entered for; each is audited under its own name and counts toward one lock-out. */
+export type Purpose = 'sign_in' | 'signature' | 'password_change';
+
+const purposeWords: Record<Purpose, string> = {
+  sign_in: 'sign-in attempts',
+  signature: 'password entries for an electronic signature',
+  password_change: 'password entries to change the password',
+};
+
 /*
  * 21 CFR 11.300(d) asks that attempted unauthorised use be reported "in an immediate and urgent
  * manner": every active administrator is e-mailed through the outbox, in the same transaction as
@@ -33,14 +42,14 @@ async function notifyAdministratorsOfLock(
   tx: Tx,
   user: { id: number; name: string; email: string },
   lockedUntil: Date,
-  purpose: 'sign_in' | 'signature',
+  purpose: Purpose,
 ): Promise<void> {
   const admins = await tx
     .select({ id: users.id, email: users.email })
     .from(users)
     .where(and(eq(users.active, true), eq(users.role, 'admin'), ne(users.id, user.id)));
   const env = getEnv();
-  const what = purpose === 'sign_in' ? 'sign-in attempts' : 'password entries for an electronic signature';
+  const what = purposeWords[purpose];
   const mail = renderMailLayout({
     siteName: env.SITE_NAME,
     heading: `Account locked: ${user.name}`,
@@ -72,7 +81,7 @@ type Outcome = 'ok' | 'wrong_password' | 'locked' | 'inactive';
 async function attempt(
   userId: number,
   password: string,
-  purpose: 'sign_in' | 'signature',
+  purpose: Purpose,
 ): Promise<{ outcome: Outcome; user?: AuthenticatedUser }> {
   return db.transaction(async (tx) => {
     const [user] = await tx.select().from(users).where(eq(users.id, userId)).for('update');
@@ -86,7 +95,7 @@ async function attempt(
         actor,
         recordType: 'user',
         recordId: user.id,
-        action: purpose === 'sign_in' ? 'sign_in_refused_locked' : 'signature_refused_locked',
+        action: `${purpose}_refused_locked`,
       });
       return { outcome: 'locked' as const };
     }
@@ -110,7 +119,7 @@ async function attempt(
       actor,
       recordType: 'user',
       recordId: user.id,
-      action: purpose === 'sign_in' ? 'sign_in_failed' : 'signature_password_failed',
+      action: purpose === 'sign_in' ? 'sign_in_failed' : `${purpose}_password_failed`,
       changes: [{ field: 'failedSignins', from: user.failedSignins, to: next.lockedUntil ? maxConsecutiveFailures : next.failedSignins }],
     });
     if (next.lockedUntil) {
@@ -146,11 +155,18 @@ export async function verifyCredentials(email: string, password: string): Promis
   return result.outcome === 'ok' ? result.user! : null;
 }
 
-const signatureRefusals: Record<Exclude<Outcome, 'ok'>, string> = {
-  wrong_password: 'The password is not correct. Nothing was signed.',
-  locked: `Your account is locked after ${maxConsecutiveFailures} failed attempts. Try again in ${lockMinutes} minutes or ask an administrator.`,
-  inactive: 'Your account is deactivated.',
+const consequence: Record<Exclude<Purpose, 'sign_in'>, string> = {
+  signature: 'Nothing was signed.',
+  password_change: 'Your password was not changed.',
 };
+
+function refusal(outcome: Exclude<Outcome, 'ok'>, purpose: Exclude<Purpose, 'sign_in'>): string {
+  if (outcome === 'wrong_password') return `The password is not correct. ${consequence[purpose]}`;
+  if (outcome === 'locked') {
+    return `Your account is locked after ${maxConsecutiveFailures} failed attempts. Try again in ${lockMinutes} minutes or ask an administrator.`;
+  }
+  return 'Your account is deactivated.';
+}
 
 /**
  * Re-checks the signer's password for an electronic signature. Call it BEFORE opening the
@@ -158,13 +174,18 @@ const signatureRefusals: Record<Exclude<Outcome, 'ok'>, string> = {
  * transaction of its own, which must not wait on locks the caller's transaction holds.
  * Throws ValidationError with a message on the `password` field.
  */
-export async function verifySignaturePassword(userId: number, password: string): Promise<void> {
+export async function verifySignaturePassword(
+  userId: number,
+  password: string,
+  purpose: Exclude<Purpose, 'sign_in'> = 'signature',
+): Promise<void> {
   if (!password) {
-    throw new ValidationError('Enter your password to sign.', { password: ['Enter your password to sign.'] });
+    const message = purpose === 'signature' ? 'Enter your password to sign.' : 'Enter your current password.';
+    throw new ValidationError(message, { password: [message] });
   }
-  const { outcome } = await attempt(userId, password, 'signature');
+  const { outcome } = await attempt(userId, password, purpose);
   if (outcome !== 'ok') {
-    const message = signatureRefusals[outcome];
+    const message = refusal(outcome, purpose);
     throw new ValidationError(message, { password: [message] });
   }
 }

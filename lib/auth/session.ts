@@ -30,7 +30,7 @@ export interface CurrentUser {
 /** Where a person with an administrator-set password is sent. */
 export const changePasswordPath = '/account/password';
 
-export const choosePasswordFirst = 'Choose your own password first (Account → Password).';
+export const choosePasswordFirst = 'Choose your own password first (Change password, next to your name).';
 
 /** Only the change-password page and its action pass this. */
 export interface PasswordChangeOption {

@@ -275,14 +275,10 @@ export async function changeOwnPassword(actor: UserActor, input: unknown, databa
   const [seen] = await database.select({ version: users.version }).from(users).where(eq(users.id, actor.id)).limit(1);
   if (!seen) throw new NotFoundError('Your account');
   try {
-    await verifySignaturePassword(actor.id, data.currentPassword);
+    await verifySignaturePassword(actor.id, data.currentPassword, 'password_change');
   } catch (err) {
     if (!(err instanceof ValidationError)) throw err;
-    // The check is shared with electronic signatures; say what was refused here instead.
-    const message = (err.fieldErrors.password?.[0] ?? err.message).replace(
-      'Nothing was signed.',
-      'Your password was not changed.',
-    );
+    const message = err.fieldErrors.password?.[0] ?? err.message;
     throw new ValidationError(message, { currentPassword: [message] });
   }
   const passwordHash = await hashPassword(data.newPassword);

@@ -18,6 +18,8 @@ export interface UserDto {
   failedSignins: number;
   lastSigninAt: string | null;
   passwordChangedAt: string | null;
+  /** An administrator set the password; the person has not yet chosen their own. */
+  mustChangePassword: boolean;
   version: number;
   createdAt: string;
 }
@@ -33,6 +35,7 @@ export const userColumns = {
   failedSignins: users.failedSignins,
   lastSigninAt: users.lastSigninAt,
   passwordChangedAt: users.passwordChangedAt,
+  mustChangePassword: users.mustChangePassword,
   version: users.version,
   createdAt: users.createdAt,
 };

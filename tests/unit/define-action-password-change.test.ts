@@ -10,7 +10,7 @@ import { ForbiddenError } from '@/lib/errors';
 
 const user = { id: 5, email: 'operator@brackwater.example', name: 'Tova Lindqvist-Amaro', title: '', role: 'operator' as const };
 const requireUser = vi.fn(async (options: { allowPasswordChange?: true } = {}) => {
-  if (!options.allowPasswordChange) throw new ForbiddenError('Choose your own password first (Account → Password).');
+  if (!options.allowPasswordChange) throw new ForbiddenError('Choose your own password first (Change password, next to your name).');
   return { ...user, mustChangePassword: true };
 });
 vi.mock('@/lib/auth/session', () => ({ requireUser: (options?: { allowPasswordChange?: true }) => requireUser(options) }));
@@ -23,7 +23,7 @@ describe('defineAction and the password-change allowance', () => {
   it('refuses an ordinary action while the password must be changed, and runs nothing', async () => {
     const command = vi.fn(async () => 'ran');
     const result = await defineAction(schema, command)({ note: 'x' });
-    expect(result).toMatchObject({ ok: false, message: 'Choose your own password first (Account → Password).' });
+    expect(result).toMatchObject({ ok: false, message: 'Choose your own password first (Change password, next to your name).' });
     expect(command).not.toHaveBeenCalled();
   });
 

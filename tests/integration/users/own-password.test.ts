@@ -136,7 +136,7 @@ describe('changing one’s own password', () => {
     });
     const actions = (await auditFor(person.id)).map((e) => e.action);
     expect(actions).not.toContain('password_changed');
-    expect(actions).toContain('signature_password_failed');
+    expect(actions).toContain('password_change_password_failed');
   });
 
   it(`locks the account after ${maxConsecutiveFailures} wrong current passwords, then refuses even the right one (21 CFR 11.300(d); common practice)`, async () => {

@@ -42,6 +42,7 @@ export default async function UsersPage({ searchParams }: PageProps<'/admin/user
           email: u.email,
           roleLabel: roleLabels[u.role],
           active: u.active,
+          mustChangePassword: u.mustChangePassword,
           lockedUntil: u.lockedUntil,
           lastSigninAt: u.lastSigninAt,
         }))}
