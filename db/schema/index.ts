@@ -5,3 +5,4 @@ export * from './mail';
 export * from './deviations';
 export * from './capa';
 export * from './complaints';
+export * from './quality';

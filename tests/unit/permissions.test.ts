@@ -43,6 +43,10 @@ ring.return_to_service    -    -    any  any  -
 ring.retire               -    -    -    any  -
 weight_check.read         any  any  any  any  -
 weight_check.record       any  any  any  -    -
+sampling.use              any  any  any  any  -
+risk.score                -    -    any  any  -
+risk.manage_scales        -    -    -    -    any
+calendar.manage           -    -    -    -    any
 audit.read                -    -    any  any  any
 masterdata.manage         -    -    -    -    any
 users.manage              -    -    -    -    any
