@@ -20,6 +20,15 @@ export default defineConfig({
   },
   test: {
     root,
+    // The pure quality computations must be exercised branch by branch: npm test runs the whole
+    // suite with --coverage and fails below these thresholds.
+    coverage: {
+      provider: 'v8',
+      include: ['lib/risk/**', 'lib/weight/**', 'lib/sampling/**', 'lib/clocks/**', 'lib/causes/**'],
+      reporter: ['text-summary', 'text'],
+      reportsDirectory: '.data/coverage',
+      thresholds: { branches: 100 },
+    },
     projects: [
       {
         extends: true,

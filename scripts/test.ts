@@ -129,7 +129,9 @@ function explain(err: unknown): string {
 const vitestBin = 'node_modules/vitest/vitest.mjs';
 
 async function runVitest(projects: Project[], sel: Selection, env: NodeJS.ProcessEnv): Promise<number> {
-  const args = [vitestBin, 'run', ...projects.flatMap((p) => ['--project', p]), ...sel.passthrough, ...sel.filters];
+  // The whole unit suite measures the computation modules' branch coverage (thresholds in vitest.config.ts).
+  const coverage = projects.includes('unit') && sel.filters.length === 0 && sel.passthrough.length === 0 ? ['--coverage'] : [];
+  const args = [vitestBin, 'run', ...projects.flatMap((p) => ['--project', p]), ...coverage, ...sel.passthrough, ...sel.filters];
   return runForeground(process.execPath, args, { cwd: root, env }, teardown);
 }
 
