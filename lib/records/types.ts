@@ -11,6 +11,7 @@ export const recordTypes = [
   'capsule_defect',
   'user',
   'setting',
+  'risk_scale',
 ] as const;
 export type RecordType = (typeof recordTypes)[number];
 
