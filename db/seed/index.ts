@@ -8,6 +8,7 @@ import { connect, type Tx } from '../client';
 import { batches, capsuleDefects, fillingRings, machines, products, settings, stateHistory, users } from '../schema';
 import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario';
 import { demoPassword } from './demo-users';
+import { seedRiskScales } from './risk';
 
 /*
  * Loads the Brackwater Capsule Co. demo into an empty database: users, settings and master data,
@@ -139,6 +140,8 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
     const [row] = await tx.insert(capsuleDefects).values(d).$returningId();
     await created('capsule_defect', row!.id, { ...d });
   }
+
+  await seedRiskScales(tx, actor, created);
 
   for (const b of scenario.batches) {
     const values = {
