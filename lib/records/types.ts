@@ -12,6 +12,7 @@ export const recordTypes = [
   'user',
   'setting',
   'risk_scale',
+  'site_closure',
 ] as const;
 export type RecordType = (typeof recordTypes)[number];
 
