@@ -13,6 +13,7 @@ export const recordTypes = [
   'setting',
   'risk_scale',
   'site_closure',
+  'weight_check',
 ] as const;
 export type RecordType = (typeof recordTypes)[number];
 
