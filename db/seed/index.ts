@@ -8,6 +8,7 @@ import { connect, type Tx } from '../client';
 import { batches, capsuleDefects, fillingRings, machines, products, settings, stateHistory, users } from '../schema';
 import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario';
 import { demoPassword } from './demo-users';
+import { seedClocks } from './clocks';
 import { seedRiskScales } from './risk';
 
 /*
@@ -142,6 +143,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
   }
 
   await seedRiskScales(tx, actor, created);
+  await seedClocks(tx, actor, created);
 
   for (const b of scenario.batches) {
     const values = {

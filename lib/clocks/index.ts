@@ -4,3 +4,4 @@ export * from './business-days';
 export * from './due-dates';
 export * from './regulatory';
 export * from './retention';
+export * from './closure-id';

@@ -47,3 +47,11 @@ describe('calendar dates as YYYY-MM-DD', () => {
     expect(formatLongDate('2027-12-24')).toBe('Friday 24 December 2027');
   });
 });
+
+describe('site closure record ids', () => {
+  it('write the day as a number and refuse a non-date', async () => {
+    const { closureRecordIdOf } = await import('../../../lib/clocks/closure-id');
+    expect(closureRecordIdOf('2026-12-28')).toBe(20261228);
+    expect(() => closureRecordIdOf('2026-12-32')).toThrow(RangeError);
+  });
+});
