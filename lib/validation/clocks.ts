@@ -22,10 +22,10 @@ const reason = trimmed(500, 'Reason').min(3, 'Say why (at least 3 characters); i
 const day = z
   .string({ error: 'Enter the date.' })
   .trim()
-  .refine(isIsoDate, 'Enter a date as YYYY-MM-DD, e.g. 2026-12-28.')
+  .refine(isIsoDate, { message: 'Enter a date as YYYY-MM-DD, e.g. 2026-12-28.', abort: true })
   .refine(
     (d) => yearOf(d) >= firstSupportedYear && yearOf(d) <= lastSupportedYear,
-    `Enter a date between ${firstSupportedYear} and ${lastSupportedYear}.`,
+    { message: `Enter a date between ${firstSupportedYear} and ${lastSupportedYear}.`, abort: true },
   );
 
 /** A closure on a weekend or a federal holiday would change nothing; say what the day already is. */
