@@ -40,6 +40,11 @@ export default async function BatchesPage({ searchParams }: PageProps<'/batches'
       <PageHeader
         title="Batches"
         description="Lots filled on the site's lines, newest first. Batch status changes through deviations and their disposition."
+        actions={
+          <Link href="/batches/sampling" className="inline-flex min-h-11 items-center font-semibold underline underline-offset-4">
+            Re-inspection sampling plan
+          </Link>
+        }
       />
       <nav aria-label="Filter by status" className="mb-4">
         <ul className="flex flex-wrap gap-2">
