@@ -95,12 +95,20 @@ export default async function EquipmentPage({ searchParams }: PageProps<'/equipm
         title="Equipment"
         description="Filling machines by room, with their filling rings. Open a ring to quarantine it, return it to service or retire it."
         actions={
-          <Link
-            href={showRetired ? '/equipment' : '/equipment?retired=show'}
-            className="inline-flex min-h-11 items-center rounded-md border border-ink-400 bg-white px-4 font-semibold hover:bg-ink-100"
-          >
-            {showRetired ? 'Hide retired rings' : 'Show retired rings'}
-          </Link>
+          <>
+            <Link
+              href="/equipment/causes"
+              className="inline-flex min-h-11 items-center rounded-md border border-ink-400 bg-white px-4 font-semibold hover:bg-ink-100"
+            >
+              Probable causes of defects
+            </Link>
+            <Link
+              href={showRetired ? '/equipment' : '/equipment?retired=show'}
+              className="inline-flex min-h-11 items-center rounded-md border border-ink-400 bg-white px-4 font-semibold hover:bg-ink-100"
+            >
+              {showRetired ? 'Hide retired rings' : 'Show retired rings'}
+            </Link>
+          </>
         }
       />
       {rooms.length === 0 ? (
