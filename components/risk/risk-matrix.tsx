@@ -22,7 +22,7 @@ const zoneClasses: Record<MatrixZone, string> = {
 export function RiskMatrix({ position }: { position: MatrixPosition | null }) {
   const rows = [...matrixSeverityBands].reverse();
   return (
-    <table className="w-full table-fixed border-collapse text-xs sm:text-sm">
+    <table className="w-full table-fixed border-collapse text-xs">
       <caption className="mb-2 text-left text-sm text-ink-700">
         Severity × probability, in the spirit of ICH Q9(R1); the zones are common practice.
         {position
@@ -31,7 +31,7 @@ export function RiskMatrix({ position }: { position: MatrixPosition | null }) {
       </caption>
       <thead>
         <tr>
-          <th scope="col" className="w-24 p-1 text-left align-bottom font-semibold text-ink-700">
+          <th scope="col" className="w-20 p-1 text-left align-bottom font-semibold text-ink-700">
             Severity ↓ / Probability →
           </th>
           {matrixProbabilityBands.map((p) => (

@@ -88,7 +88,7 @@ export function RiskScoreWidget({
   const scoreLine = riskDimensions.map((d) => `${riskDimensionLetters[d]} ${scores[d] ?? '–'}`).join(' · ');
 
   return (
-    <div className="flex flex-col gap-4 lg:grid lg:grid-cols-[minmax(0,1fr)_minmax(0,26rem)] lg:items-start lg:gap-6">
+    <div className="flex flex-col gap-4 lg:grid lg:grid-cols-[minmax(0,1fr)_minmax(0,30rem)] lg:items-start lg:gap-6">
       <input type="hidden" name={`${namePrefix}scaleVersion`} value={scaleVersion} />
 
       {/* On narrow screens the full results sit below the scales; this strip keeps the outcome in view. */}
@@ -123,7 +123,9 @@ export function RiskScoreWidget({
       <section
         aria-labelledby={`${id}-result`}
         aria-live="polite"
-        className="flex flex-col gap-4 rounded-lg border border-ink-300 bg-white p-4 lg:sticky lg:top-4"
+        // Scrolls on its own on wide screens so the class to record stays reachable while it sticks.
+        tabIndex={0}
+        className="flex flex-col gap-4 rounded-lg border border-ink-300 bg-white p-4 lg:sticky lg:top-4 lg:max-h-[calc(100dvh-2rem)] lg:overflow-y-auto"
       >
         <h2 id={`${id}-result`} className="text-lg font-semibold">
           Result <span className="font-normal text-ink-600">({scoreLine})</span>
