@@ -10,6 +10,7 @@ import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario'
 import { demoPassword } from './demo-users';
 import { seedClocks } from './clocks';
 import { seedRiskScales } from './risk';
+import { seedWeightChecks } from './weight';
 
 /*
  * Loads the Brackwater Capsule Co. demo into an empty database: users, settings and master data,
@@ -160,6 +161,8 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
     const [row] = await tx.insert(batches).values(values).$returningId();
     await created('batch', row!.id, values);
   }
+
+  await seedWeightChecks(tx, scenario, seedAuditAction);
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) {
