@@ -1,12 +1,13 @@
 import type { Connection } from 'mysql2/promise';
 
 /*
- * The application's database user gets exactly what it needs, table by table. The audit trail and
- * the signatures are append-only for real (21 CFR 11.10(e)): INSERT and SELECT, no UPDATE, no DELETE.
+ * The application's database user gets exactly what it needs, table by table. The audit trail, the
+ * signatures, state history and published risk scale versions are append-only for real
+ * (21 CFR 11.10(e)): INSERT and SELECT, no UPDATE, no DELETE.
  * Records are never deleted either; the few link tables an editor may untick get DELETE.
  */
 
-export const appendOnlyTables = ['audit_entries', 'signatures', 'state_history'] as const;
+export const appendOnlyTables = ['audit_entries', 'signatures', 'state_history', 'risk_scale_versions', 'risk_scale_levels'] as const;
 const deletableTables = new Set(['deviation_batches']);
 const readOnlyTables = new Set(['__drizzle_migrations']);
 
