@@ -2,20 +2,31 @@
  * ISO 2859-1:1999 single sampling master tables, written out cell by cell as printed: one string
  * per sample size code letter, 26 cells for the AQL columns 0.010 … 1000. A cell is "Ac/Re", "↓"
  * (use the first plan below the arrow) or "↑" (use the first plan above it). Tables 2-A and 2-B
- * carry the same plans as ANSI/ASQ Z1.4-2003 Tables II-A and II-B (both descend from
- * MIL-STD-105E, a public-domain document). The reduced table follows ISO 2859-1:1999 Table 2-C,
- * where every rejection number is the acceptance number plus one; Z1.4 keeps gaps there.
+ * carry the same plans as ANSI/ASQ Z1.4-2003 Tables II-A and II-B and MIL-STD-105E (10 May 1989,
+ * public domain) Tables II-A and II-B. The reduced table follows the ISO 2859-1:1999 approach,
+ * where every rejection number is the acceptance number plus one; MIL-STD-105E and Z1.4 keep gaps
+ * there.
  *
  * Provenance, so a reviewer knows what to check against a licensed copy of the standard:
- * - Table 1 (code letters): checked against published transcriptions of MIL-STD-105E Table I.
- * - Table 2-A: rows A–Q for AQL 0.65 … 15 checked against a transcription of MIL-STD-105E
- *   Table II-A, and the plans per row (30/31 and 44/45 only in rows A–E) against a second one.
- *   The other cells follow the table's diagonals and are from memory.
- * - Table 2-B: rows B–L for AQL 0.65 … 15 checked against a transcription of MIL-STD-105E
- *   Table II-B. Row A at AQL 10 (an arrow in that transcription, 0/1 here) and the plans 27/28
- *   and 41/42 are from memory. The printed table has an extra code letter S (3150) that is not
- *   encoded; a lookup that would need it reports that the table has no plan.
- * - Table 2-C: from memory, on the diagonals of Table 2-A at the reduced sample sizes.
+ * - Table 1 (code letters): every lot-size row at all seven levels checked against two published
+ *   reproductions of MIL-STD-105E Table I; the S-2 and S-3 columns against a third.
+ * - Table 2-A: rows A–Q at AQL 0.65 … 15 checked cell by cell, arrows included, against a
+ *   transcription of MIL-STD-105E Table II-A. That transcription prints ↑ at row A, AQL 10 (an
+ *   arrow with no plan above it), and so does this table. The plans of every row, in order, were
+ *   checked against a legible copy of MIL-STD-105E Table II-A whose arrows did not survive: row A
+ *   runs 0/1 … 30/31, rows B–E 0/1 … 44/45, rows F–Q 0/1 … 21/22, row R 1/2 … 21/22. Where those
+ *   plans and the arrows sit outside AQL 0.65 … 15 follows the table's diagonals and is from memory.
+ * - Table 2-B: rows A–L at AQL 0.65 … 15 checked cell by cell, arrows included, against a
+ *   transcription of MIL-STD-105E Table II-B. Row A at AQL 10 is ↓ there (corrected here; it was
+ *   0/1), which sends code letter A on to D, n 8, 1/2. Rows M–R, the AQLs outside 0.65 … 15 and the
+ *   plans 27/28 and 41/42 are from memory. The printed table has an extra code letter S (3150)
+ *   below R; it could not be checked against any copy of the standard and is not encoded, so a
+ *   lookup that would need it reports that the table has no plan.
+ * - Table 2-C: not checked. No legible copy of MIL-STD-105E Table II-C or ISO 2859-1:1999
+ *   Table 2-C could be read. The cells are derived: ISO 2859-1:1999 removes the gap, Re = Ac + 1,
+ *   so each row repeats the Table 2-A row of the same sample size (A, B and C at n 2 follow row A;
+ *   D at n 3 follows row B; and so on). ISO 2859-1:1999 also changed some reduced acceptance
+ *   numbers, and which ones could not be checked, so treat every reduced plan as unverified.
  */
 
 export const codeLetters = ['A', 'B', 'C', 'D', 'E', 'F', 'G', 'H', 'J', 'K', 'L', 'M', 'N', 'P', 'Q', 'R'] as const;
@@ -32,7 +43,7 @@ export const inspectionLevels = ['S-1', 'S-2', 'S-3', 'S-4', 'I', 'II', 'III'] a
 export type InspectionLevel = (typeof inspectionLevels)[number];
 
 /**
- * ISO 2859-1:1999 Table 1 (Z1.4-2003 Table I): the smallest lot size of each row and its code
+ * ISO 2859-1:1999 Table 1 (Z1.4-2003 Table I; MIL-STD-105E Table I): the smallest lot size of each row and its code
  * letter for S-1, S-2, S-3, S-4, I, II, III in that order.
  */
 // prettier-ignore
@@ -88,7 +99,7 @@ export const normalTable: Record<CodeLetter, string> = {
 // prettier-ignore
 export const tightenedTable: Record<CodeLetter, string> = {
   //      0.010 0.015 0.025 0.040 0.065  0.10  0.15  0.25  0.40  0.65   1.0   1.5   2.5   4.0   6.5    10    15    25    40    65   100   150   250   400   650  1000
-  A: '    ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓   0/1     ↓     ↓   1/2   2/3   3/4   5/6   8/9 12/13 18/19 27/28',
+  A: '    ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓   1/2   2/3   3/4   5/6   8/9 12/13 18/19 27/28',
   B: '    ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓   0/1     ↓     ↓   1/2   2/3   3/4   5/6   8/9 12/13 18/19 27/28 41/42',
   C: '    ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓   0/1     ↓     ↓   1/2   2/3   3/4   5/6   8/9 12/13 18/19 27/28 41/42     ↑',
   D: '    ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓     ↓   0/1     ↓     ↓   1/2   2/3   3/4   5/6   8/9 12/13 18/19 27/28 41/42     ↑     ↑',

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { type Aql, aqlValues, codeLetters, type InspectionLevel } from '@/lib/sampling/master-tables';
+import { type Aql, aqlValues, type CodeLetter, codeLetters, type InspectionLevel } from '@/lib/sampling/master-tables';
 import {
   codeLetterFor,
   findSamplingPlan,
@@ -12,9 +12,11 @@ import {
 
 /*
  * Sources named per check. "MIL-STD-105E II-A/II-B transcription" means the cell was compared with
- * a published transcription of the public-domain MIL-STD-105E tables, which carry the same plans
- * as ISO 2859-1:1999 Tables 2-A/2-B and ANSI/ASQ Z1.4-2003 Tables II-A/II-B. "From memory" marks
- * values that were not compared with any printed table.
+ * a published transcription of the public-domain MIL-STD-105E (10 May 1989) tables, which carry the
+ * same plans as ISO 2859-1:1999 Tables 2-A/2-B and ANSI/ASQ Z1.4-2003 Tables II-A/II-B. Those
+ * transcriptions cover rows A–Q (II-A) and A–L (II-B) at AQL 0.65 … 15 and give Re; Ac is Re − 1,
+ * as in every single plan of II-A and II-B. "From memory" marks values that were not compared
+ * with any printed table; "derived" marks the reduced table, built by rule (see master-tables.ts).
  */
 
 function plan(query: PlanQuery) {
@@ -23,7 +25,7 @@ function plan(query: PlanQuery) {
   return result.plan;
 }
 
-describe('sample size code letters (ISO 2859-1:1999 Table 1; Z1.4-2003 Table I)', () => {
+describe('sample size code letters (MIL-STD-105E Table I; same letters as ISO 2859-1:1999 Table 1 and Z1.4-2003 Table I)', () => {
   // Each pair is the last lot size of a row and the first of the next, general level II.
   const boundaries: [number, string, string][] = [
     [8, 'A', 'B'],
@@ -152,7 +154,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('special level S-1, large lot (D at 2.5 ↑ → C, n 5, 0/1)', () => {
-    // Table 1: lot 100 000 at S-1 is D; Table 2-A diagonals (from memory for D/C at 2.5)
+    // MIL-STD-105E Table I: lot 100 000 at S-1 is D; II-A transcription: D at 2.5 is ↑, C at 2.5 is 0/1
     expect(plan({ lotSize: 100000, level: 'S-1', aql: '2.5', severity: 'normal' })).toMatchObject({
       lookedUpLetter: 'D',
       letter: 'C',
@@ -217,14 +219,14 @@ describe('tightened inspection (ISO 2859-1:1999 Table 2-B)', () => {
     });
   });
 
-  it('top right: B at 1000 is 41/42 (from memory)', () => {
+  it('top right: B at 1000 is 41/42 (from memory, not checked against II-B)', () => {
     expect(plan({ lotSize: 10, level: 'II', aql: '1000', severity: 'tightened' })).toMatchObject({ acceptance: 41, rejection: 42 });
   });
 });
 
-describe('reduced inspection (ISO 2859-1:1999 Table 2-C, from memory)', () => {
+describe('reduced inspection (derived: ISO 2859-1:1999 removes the gap, Re = Ac + 1; cells not checked against Table 2-C)', () => {
   it('uses the reduced sample sizes (K → 50) and follows arrows within the reduced table', () => {
-    // K at 0.65 reduced: ↓ → L, n 80, 1/2 (from memory)
+    // K at 0.65 reduced: ↓ → L, n 80, 1/2 (derived from Table 2-A row H, n 50 … not checked)
     expect(plan({ lotSize: 2000, level: 'II', aql: '0.65', severity: 'reduced' })).toMatchObject({
       table: 'ISO 2859-1:1999 Table 2-C',
       lookedUpLetter: 'K',
@@ -237,7 +239,7 @@ describe('reduced inspection (ISO 2859-1:1999 Table 2-C, from memory)', () => {
   });
 
   it.each<[number, Aql, string, number, number, number]>([
-    // from memory
+    // derived, not checked against any printed reduced table
     [5000, '2.5', 'L', 80, 5, 6],
     [10, '6.5', 'B', 2, 0, 1],
     [50000, '1.0', 'N', 200, 5, 6],
@@ -250,13 +252,62 @@ describe('reduced inspection (ISO 2859-1:1999 Table 2-C, from memory)', () => {
     });
   });
 
-  it('every reduced plan has Re = Ac + 1 (ISO 2859-1:1999 Table 2-C; Z1.4-2003 Table II-C has gaps)', () => {
+  it('every reduced plan has Re = Ac + 1 (ISO 2859-1:1999 approach to Table 2-C; MIL-STD-105E and Z1.4-2003 Table II-C have gaps)', () => {
     for (const letter of codeLetters) {
       for (const aql of aqlValues) {
         const cell = tableCell('reduced', letter, aql);
         if (cell.kind === 'plan') expect(cell.rejection).toBe(cell.acceptance + 1);
       }
     }
+  });
+});
+
+describe('cells checked against MIL-STD-105E transcriptions, arrows included', () => {
+  const down = { kind: 'down' };
+  const up = { kind: 'up' };
+  const plan01 = (ac: number) => ({ kind: 'plan', acceptance: ac, rejection: ac + 1 });
+
+  it.each<[CodeLetter, Aql, object]>([
+    ['A', '6.5', plan01(0)],
+    ['A', '10', up],
+    ['A', '15', down],
+    ['E', '1.5', up],
+    ['E', '2.5', down],
+    ['E', '15', plan01(5)],
+    ['H', '0.65', down],
+    ['K', '15', up],
+    ['Q', '1.0', plan01(21)],
+    ['Q', '1.5', up],
+  ])('MIL-STD-105E Table II-A (same plans as ISO 2859-1:1999 Table 2-A): %s at AQL %s', (letter, aql, cell) => {
+    expect(tableCell('normal', letter, aql)).toEqual(cell);
+  });
+
+  it.each<[CodeLetter, Aql, object]>([
+    ['A', '6.5', down],
+    ['A', '10', down],
+    ['B', '6.5', plan01(0)],
+    ['B', '10', down],
+    ['G', '0.65', plan01(0)],
+    ['G', '1.0', down],
+    ['G', '15', plan01(8)],
+    ['K', '10', plan01(18)],
+    ['K', '15', up],
+    ['L', '0.65', plan01(2)],
+  ])('MIL-STD-105E Table II-B (same plans as ISO 2859-1:1999 Table 2-B): %s at AQL %s', (letter, aql, cell) => {
+    expect(tableCell('tightened', letter, aql)).toEqual(cell);
+  });
+
+  it('tightened, code letter A at AQL 10 follows the arrow down to D (n 8, Ac 1 Re 2; a lot of 5 is inspected whole)', () => {
+    // MIL-STD-105E Table II-B transcription: A, B and C at 10 are one down arrow ending at D's 1/2.
+    expect(plan({ lotSize: 5, level: 'II', aql: '10', severity: 'tightened' })).toMatchObject({
+      lookedUpLetter: 'A',
+      letter: 'D',
+      tableSampleSize: 8,
+      acceptance: 1,
+      rejection: 2,
+      arrow: 'down',
+      hundredPercent: true,
+    });
   });
 });
 
@@ -268,7 +319,9 @@ describe('the lot decision', () => {
   });
 
   it('a count inside a Z1.4 reduced gap accepts the lot and reinstates normal inspection', () => {
-    // ANSI/ASQ Z1.4-2003 clauses 8.3.4(b) and 10.1.4; the plan Ac 1 Re 3 is from memory of Table II-C
+    // ANSI/ASQ Z1.4-2003 clauses 8.3.4(b) and 10.1.4 (clause numbers from memory); the rule itself is
+    // restated in a published AQL inspection manual's notes on the Z1.4 reduced tables. The plan
+    // Ac 1 Re 3 is from memory of Table II-C.
     expect(judgeSample({ acceptance: 1, rejection: 3 }, 2)).toBe('accept_and_reinstate_normal');
   });
 });
