@@ -162,7 +162,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
     await created('batch', row!.id, values);
   }
 
-  await seedWeightChecks(tx, scenario, seedAuditAction);
+  await seedWeightChecks(tx, scenario);
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) {

@@ -101,7 +101,13 @@ export function plannedChart(planned: readonly PlannedCheck[], lotNumber: string
   );
 }
 
-export async function seedWeightChecks(tx: Tx, scenario: DemoScenario, auditAction: string): Promise<void> {
+/*
+ * Each demo check is audited as recorded by the person who weighed it, not as master data the
+ * administrator created, so it carries its own action.
+ */
+export const weightSeedAuditAction = 'record (demo data)';
+
+export async function seedWeightChecks(tx: Tx, scenario: DemoScenario): Promise<void> {
   const planned = planDemoWeightChecks(scenario);
   const lots = [...new Set(planned.map((c) => c.lotNumber))];
   if (lots.length === 0) return;
@@ -120,7 +126,7 @@ export async function seedWeightChecks(tx: Tx, scenario: DemoScenario, auditActi
         person.id,
         c.checkedAt,
       );
-      await insertWeightCheck(tx, { id: person.id, name: person.name }, values, auditAction);
+      await insertWeightCheck(tx, { id: person.id, name: person.name }, values, weightSeedAuditAction);
     }
   }
 }
