@@ -150,6 +150,12 @@ export function findSamplingPlan({ lotSize, level, aql, severity }: PlanQuery): 
         `The sample size is that plan's, not the ${sampleSizes[severity][lookedUpLetter]} of code letter ${lookedUpLetter}.`,
     );
   }
+  if (severity === 'reduced') {
+    notes.push(
+      'Reduced-inspection plans are derived from the normal table (Re = Ac + 1) and have not been checked against ' +
+        'a copy of ISO 2859-1:1999 Table 2-C: confirm this plan against the site’s licensed copy before relying on it.',
+    );
+  }
   if (hundredPercent) {
     notes.push(
       `The sample size (${tableSampleSize}) equals or exceeds the lot (${lotSize}): inspect every unit in the lot (100 % inspection).`,

@@ -53,6 +53,12 @@ export default async function SamplingPage({ searchParams }: PageProps<'/batches
           not, and a lot not accepted sends inspection back to normal. Plumbline uses the ISO 2859-1:1999 reduced
           plans. If a customer contract names Z1.4, use its table instead.
         </p>
+        <p>
+          <strong>Check before use:</strong> the normal and tightened plans in Plumbline were checked against published
+          reprints of the same plans; the reduced plans were derived (Re = Ac + 1 on the reduced sample sizes) and have
+          not yet been checked against ISO 2859-1:1999 Table 2-C. Confirm a reduced plan against your site&apos;s licensed
+          copy of the standard before relying on it.
+        </p>
         <h3 className="text-lg font-bold text-ink-900">Switching rules (ISO 2859-1:1999 clause 9)</h3>
         <ul className="list-disc space-y-1 pl-6">
           <li>Inspection starts at normal.</li>
