@@ -20,6 +20,8 @@ export const demoClosures: readonly { day: string; description: string }[] = [
   { day: '2026-11-27', description: 'Site holiday: day after Thanksgiving' },
 ];
 
+export const demoSiteTimeZone = 'America/Chicago';
+
 export async function seedClocks(
   tx: Tx,
   actor: AuditActor,
@@ -30,6 +32,9 @@ export async function seedClocks(
     await tx.insert(settings).values({ key, value });
     await created('setting', 0, { [key]: value });
   }
+  // "Today" for every clock is the day at the site, wherever the server runs.
+  await tx.insert(settings).values({ key: 'site_time_zone', value: demoSiteTimeZone });
+  await created('setting', 0, { site_time_zone: demoSiteTimeZone });
   for (const c of demoClosures) {
     await tx
       .insert(siteClosures)

@@ -85,3 +85,13 @@ export function formatLongDate(date: IsoDate): string {
   const month = d.toLocaleString('en-US', { month: 'long', timeZone: 'UTC' });
   return `${weekdayNames[d.getUTCDay()]} ${d.getUTCDate()} ${month} ${d.getUTCFullYear()}`;
 }
+
+/**
+ * The calendar day it is at `instant` in an IANA time zone (the site's), e.g. 'America/Chicago'.
+ * 'UTC' gives the same as isoDateOfInstant. Throws RangeError for an unknown zone.
+ */
+export function todayIn(timeZone: string, instant: Date): IsoDate {
+  const parts = new Intl.DateTimeFormat('en-CA', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit' }).formatToParts(instant);
+  const part = (type: string) => parts.find((p) => p.type === type)!.value;
+  return `${part('year')}-${part('month')}-${part('day')}`;
+}

@@ -2,7 +2,7 @@ import 'server-only';
 import { and, asc, eq, gte, inArray, lte } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
 import { settings, siteClosures, users } from '../../db/schema';
-import { addDays, type IsoDate } from '../clocks/dates';
+import { addDays, type IsoDate, todayIn } from '../clocks/dates';
 import { type BusinessCalendar, makeCalendar } from '../clocks/business-days';
 import { type Classification, type DueDaySetting, dueDaySettingKeys, readDueDaySettings } from '../clocks/due-dates';
 
@@ -56,4 +56,18 @@ export async function getDueDaySettings(database: DbOrTx = db): Promise<Record<C
     .from(settings)
     .where(inArray(settings.key, Object.values(dueDaySettingKeys)));
   return readDueDaySettings(Object.fromEntries(rows.map((r) => [r.key, r.value])));
+}
+
+export const siteTimeZoneKey = 'site_time_zone';
+
+/** The site's IANA time zone from settings; UTC when unset or not a zone this runtime knows. */
+export async function getSiteTimeZone(database: DbOrTx = db): Promise<string> {
+  const [row] = await database.select({ value: settings.value }).from(settings).where(eq(settings.key, siteTimeZoneKey));
+  if (!row) return 'UTC';
+  try {
+    todayIn(row.value, new Date(0));
+    return row.value;
+  } catch {
+    return 'UTC';
+  }
 }

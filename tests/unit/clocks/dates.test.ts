@@ -55,3 +55,13 @@ describe('site closure record ids', () => {
     expect(() => closureRecordIdOf('2026-12-32')).toThrow(RangeError);
   });
 });
+
+describe('today at the site', () => {
+  it('is the wall-calendar day in the site time zone, not the server’s (IANA tz database)', async () => {
+    const { todayIn } = await import('../../../lib/clocks/dates');
+    const evening = new Date('2026-11-26T03:30:00.000Z'); // 21:30 on 25 Nov in Chicago (UTC−6 in November)
+    expect(todayIn('UTC', evening)).toBe('2026-11-26');
+    expect(todayIn('America/Chicago', evening)).toBe('2026-11-25');
+    expect(() => todayIn('Mars/Olympus_Mons', evening)).toThrow(RangeError);
+  });
+});
