@@ -6,9 +6,11 @@ import { assertRiskScore } from './scales';
  * handbook does not let severity alone decide: with S 9-10 and O 1 the priority is low whatever the
  * detection, because prevention has made the failure practically impossible.
  *
- * The table below is written from memory of the handbook's printed table, not checked against a
- * copy of the book: confirm it against the site's copy before relying on it. The unit test checks a
- * case in every cell and names the cells least certain.
+ * Source: AIAG & VDA FMEA Handbook (2019), Table 'Action Priority for DFMEA and PFMEA', as reproduced
+ * by shawnparnell81/AccuQual (apps/web/src/components/forms/fmeaPriority.ts) and by
+ * Siddardth7/quality-platform (apps/fmea/tests/test_ap_engine.py). All 100 cells below agree with
+ * both; no copy of the book itself was at hand, so a site that owns the handbook should still
+ * compare this table with its copy once.
  */
 
 export const actionPriorities = ['high', 'medium', 'low'] as const;
@@ -62,7 +64,7 @@ type DetectionRow = readonly [Cell, Cell, Cell, Cell];
 /** Five rows, one per occurrence band in `occurrenceBands` order (O 8-10, 6-7, 4-5, 2-3, 1). */
 type OccurrenceBlock = readonly [DetectionRow, DetectionRow, DetectionRow, DetectionRow, DetectionRow];
 
-/** One block per severity band in `severityBands` order (S 9-10, 7-8, 4-6, 2-3, 1). From memory. */
+/** One block per severity band in `severityBands` order (S 9-10, 7-8, 4-6, 2-3, 1); sources above. */
 export const actionPriorityTable: readonly [OccurrenceBlock, OccurrenceBlock, OccurrenceBlock, OccurrenceBlock, OccurrenceBlock] = [
   // S 9-10
   [

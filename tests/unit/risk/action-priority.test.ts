@@ -11,41 +11,25 @@ import {
 } from '@/lib/risk/action-priority';
 
 /*
- * AIAG & VDA FMEA Handbook, 1st ed. (2019), action priority table for DFMEA and PFMEA — from
- * memory, not checked against the book. Written here in the handbook's layout, independently of
- * the module's nested arrays: one line per severity band × occurrence band, four letters for
- * detection 7-10, 5-6, 2-4, 1.
- *
- * Least certain cells (confirm against the book): S 4-6 / O 6-7 / D 1 (L), S 4-6 / O 4-5 / D 5-6 (L),
- * S 2-3 / O 8-10 / D 2-4 (L), S 9-10 / O 2-3 / D 5-6 (M), S 7-8 / O 4-5 / D 5-6 (M).
+ * AIAG & VDA FMEA Handbook, 1st ed. (2019), Table 'Action Priority for DFMEA and PFMEA', as
+ * reproduced by shawnparnell81/AccuQual (apps/web/src/components/forms/fmeaPriority.ts) and by
+ * Siddardth7/quality-platform (apps/fmea/tests/test_ap_engine.py); the two agree on all 100 cells.
+ * Written here in the handbook's layout, independently of the module's nested arrays: one block per
+ * severity band, one line per occurrence band (8-10, 6-7, 4-5, 2-3, 1), four letters for detection
+ * 7-10, 5-6, 2-4, 1.
  */
-const handbook: Record<string, string> = {
-  'S9-10 O8-10': 'HHHH',
-  'S9-10 O6-7': 'HHHH',
-  'S9-10 O4-5': 'HHHM',
-  'S9-10 O2-3': 'HMLL',
-  'S9-10 O1': 'LLLL',
-  'S7-8 O8-10': 'HHHH',
-  'S7-8 O6-7': 'HHHM',
-  'S7-8 O4-5': 'HMMM',
-  'S7-8 O2-3': 'MMLL',
-  'S7-8 O1': 'LLLL',
-  'S4-6 O8-10': 'HHMM',
-  'S4-6 O6-7': 'MMML',
-  'S4-6 O4-5': 'MLLL',
-  'S4-6 O2-3': 'LLLL',
-  'S4-6 O1': 'LLLL',
-  'S2-3 O8-10': 'MMLL',
-  'S2-3 O6-7': 'LLLL',
-  'S2-3 O4-5': 'LLLL',
-  'S2-3 O2-3': 'LLLL',
-  'S2-3 O1': 'LLLL',
-  'S1 O8-10': 'LLLL',
-  'S1 O6-7': 'LLLL',
-  'S1 O4-5': 'LLLL',
-  'S1 O2-3': 'LLLL',
-  'S1 O1': 'LLLL',
+const handbookSeverityBlocks: Record<string, readonly [string, string, string, string, string]> = {
+  //        O 8-10  O 6-7   O 4-5   O 2-3   O 1
+  'S9-10': ['HHHH', 'HHHH', 'HHHM', 'HMLL', 'LLLL'],
+  'S7-8': ['HHHH', 'HHHM', 'HMMM', 'MMLL', 'LLLL'],
+  'S4-6': ['HHMM', 'MMML', 'MLLL', 'LLLL', 'LLLL'],
+  'S2-3': ['MMLL', 'LLLL', 'LLLL', 'LLLL', 'LLLL'],
+  'S1': ['LLLL', 'LLLL', 'LLLL', 'LLLL', 'LLLL'],
 };
+const handbookOccurrenceOrder = ['O8-10', 'O6-7', 'O4-5', 'O2-3', 'O1'] as const;
+const handbook: Record<string, string> = Object.fromEntries(
+  Object.entries(handbookSeverityBlocks).flatMap(([s, rows]) => rows.map((row, i) => [`${s} ${handbookOccurrenceOrder[i]}`, row])),
+);
 const letter: Record<string, ActionPriority> = { H: 'high', M: 'medium', L: 'low' };
 
 const scores = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10];
@@ -55,7 +39,7 @@ describe('action priority bands', () => {
     ['severity', severityBands],
     ['occurrence', occurrenceBands],
     ['detection', detectionBands],
-  ] as const)('the %s bands cover 1-10 once each (AIAG & VDA FMEA Handbook 2019, from memory)', (_name, bands) => {
+  ] as const)('the %s bands cover 1-10 once each (AIAG & VDA FMEA Handbook 2019, AP table bands)', (_name, bands) => {
     for (const s of scores) expect(bands.filter((b) => s >= b.from && s <= b.to)).toHaveLength(1);
     expect(bandIndex(bands, 0)).toBe(-1);
   });
@@ -66,7 +50,7 @@ describe('action priority bands', () => {
   });
 });
 
-describe('actionPriority (AIAG & VDA FMEA Handbook 2019, DFMEA/PFMEA table, from memory)', () => {
+describe('actionPriority (AIAG & VDA FMEA Handbook 2019, Action Priority for DFMEA and PFMEA)', () => {
   const cases: [number, number, number, ActionPriority, string][] = [];
   for (const sb of severityBands) {
     for (const ob of occurrenceBands) {
@@ -82,6 +66,7 @@ describe('actionPriority (AIAG & VDA FMEA Handbook 2019, DFMEA/PFMEA table, from
   }
 
   it('has a case for every one of the 100 cells', () => {
+    expect(Object.keys(handbook)).toHaveLength(25);
     expect(new Set(cases.map((c) => c[4])).size).toBe(100);
   });
 
@@ -97,6 +82,17 @@ describe('actionPriority (AIAG & VDA FMEA Handbook 2019, DFMEA/PFMEA table, from
     expect(actionPriority(9, 2, 7)).toBe('high');
     expect(actionPriority(10, 3, 6)).toBe('medium');
     expect(actionPriority(10, 3, 4)).toBe('low');
+  });
+
+  // The cells once least certain, each checked against both reproductions named at the top.
+  it.each<[number, number, number, ActionPriority, string]>([
+    [5, 6, 1, 'low', 'S 4-6 / O 6-7 / D 1'],
+    [5, 4, 5, 'low', 'S 4-6 / O 4-5 / D 5-6'],
+    [3, 9, 3, 'low', 'S 2-3 / O 8-10 / D 2-4'],
+    [9, 2, 5, 'medium', 'S 9-10 / O 2-3 / D 5-6'],
+    [8, 4, 6, 'medium', 'S 7-8 / O 4-5 / D 5-6'],
+  ])('S=%i O=%i D=%i → %s (AIAG & VDA FMEA Handbook 2019, AP table, cell %s)', (s, o, d, expected) => {
+    expect(actionPriority(s, o, d)).toBe(expected);
   });
 
   it('never falls when S, O or D rises (the table orders severity, then occurrence, then detection)', () => {
