@@ -6,11 +6,10 @@ import { assertRiskScore } from './scales';
  * handbook does not let severity alone decide: with S 9-10 and O 1 the priority is low whatever the
  * detection, because prevention has made the failure practically impossible.
  *
- * Source: AIAG & VDA FMEA Handbook (2019), Table 'Action Priority for DFMEA and PFMEA', as reproduced
- * by shawnparnell81/AccuQual (apps/web/src/components/forms/fmeaPriority.ts) and by
- * Siddardth7/quality-platform (apps/fmea/tests/test_ap_engine.py). All 100 cells below agree with
- * both; no copy of the book itself was at hand, so a site that owns the handbook should still
- * compare this table with its copy once.
+ * Source: AIAG & VDA FMEA Handbook (2019), Table 'Action Priority for DFMEA and PFMEA'. All 100
+ * cells below were checked against two independent published reproductions of that table, which
+ * agree with each other; no copy of the book itself was at hand, so a site that owns the handbook
+ * should still compare this table with its copy once.
  */
 
 export const actionPriorities = ['high', 'medium', 'low'] as const;

@@ -11,9 +11,8 @@ import {
 } from '@/lib/risk/action-priority';
 
 /*
- * AIAG & VDA FMEA Handbook, 1st ed. (2019), Table 'Action Priority for DFMEA and PFMEA', as
- * reproduced by shawnparnell81/AccuQual (apps/web/src/components/forms/fmeaPriority.ts) and by
- * Siddardth7/quality-platform (apps/fmea/tests/test_ap_engine.py); the two agree on all 100 cells.
+ * AIAG & VDA FMEA Handbook, 1st ed. (2019), Table 'Action Priority for DFMEA and PFMEA', checked
+ * against two independent published reproductions of the table, which agree on all 100 cells.
  * Written here in the handbook's layout, independently of the module's nested arrays: one block per
  * severity band, one line per occurrence band (8-10, 6-7, 4-5, 2-3, 1), four letters for detection
  * 7-10, 5-6, 2-4, 1.

@@ -101,7 +101,7 @@ describe('assessRisk', () => {
   it('returns RPN, action priority, matrix cell and classification together', () => {
     const a = assessRisk(base('major', 7, 4, 6));
     expect(a.rpn).toBe(168); // IEC 60812:2018
-    expect(a.actionPriority.priority).toBe('medium'); // AIAG & VDA FMEA Handbook 2019, AP table, S 7-8 / O 4-5 / D 5-6 (as reproduced by AccuQual and quality-platform)
+    expect(a.actionPriority.priority).toBe('medium'); // AIAG & VDA FMEA Handbook 2019, AP table, S 7-8 / O 4-5 / D 5-6 
     expect(a.matrix).toMatchObject({ severity: { level: 4 }, probability: { level: 2 }, zone: 'medium' }); // common practice
     expect(a.classification.classification).toBe('major');
   });
