@@ -1,7 +1,7 @@
 import { formatUtc } from '@/components/ui/format';
 import { StatusBadge } from '@/components/ui/status-badge';
 import type { WeightCheckDto } from '@/lib/weight-checks/types';
-import { methodLabels } from '@/lib/weight/evaluate';
+import { methodShortLabels } from '@/lib/weight/evaluate';
 import { num } from './format';
 
 /** A batch's checks, newest first. */
@@ -24,7 +24,7 @@ export function RecentChecks({ checks }: { checks: readonly WeightCheckDto[] }) 
           {[...checks].reverse().map((c) => (
             <tr key={c.id} className="border-t border-ink-100 align-top">
               <td className="px-3 py-2 whitespace-nowrap">{formatUtc(c.checkedAt)}</td>
-              <td className="px-3 py-2">{methodLabels[c.method]}</td>
+              <td className="px-3 py-2 whitespace-nowrap">{methodShortLabels[c.method]}</td>
               <td className="px-3 py-2 tabular-nums">
                 {c.sampleSize} {c.massMode}
               </td>

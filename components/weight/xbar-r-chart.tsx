@@ -32,7 +32,7 @@ function Panel({
   unit: string;
 }) {
   const height = 200;
-  const top = 20;
+  const top = 40;
   const bottom = 26;
   const all = [...values, lower, upper, centre];
   const pad = (Math.max(...all) - Math.min(...all)) * 0.1 || 1;
@@ -62,7 +62,7 @@ function Panel({
           </text>
         </g>
       ))}
-      <text x={left - 6} y={y(hi - pad) + 4} textAnchor="end" fontSize="11" fill="#3b4d5f">
+      <text x={width - 6} y={14} textAnchor="end" fontSize="11" fill="#3b4d5f">
         {unit}
       </text>
       <path d={path} fill="none" stroke="#1f4f8f" strokeWidth="1.5" />

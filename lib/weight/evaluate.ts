@@ -21,6 +21,12 @@ export const methodLabels: Record<WeightMethod, string> = {
   usp_2091: 'USP <2091> weight variation (dietary supplements)',
 };
 
+export const methodShortLabels: Record<WeightMethod, string> = {
+  ph_eur_2_9_5: 'Ph. Eur. 2.9.5',
+  usp_905: 'USP <905>',
+  usp_2091: 'USP <2091>',
+};
+
 /** Supplements default to the supplement chapter; drugs to Ph. Eur. 2.9.5. */
 export function defaultMethod(regulatoryClass: 'supplement' | 'drug'): WeightMethod {
   return regulatoryClass === 'supplement' ? 'usp_2091' : 'ph_eur_2_9_5';
