@@ -7,6 +7,7 @@ import { SeedRefusedError, seedAuditAction, seedDemo } from '@/db/seed/index';
 import { demoPassword } from '@/db/seed/demo-users';
 import { buildDemoScenario } from '@/db/seed/scenario';
 import { verifyAuditChain } from '@/lib/audit';
+import { demoClosures } from '@/db/seed/clocks';
 import { verifyPassword } from '@/lib/auth/passwords';
 import { testStack } from '../../helpers/env';
 
@@ -138,20 +139,29 @@ describe('demo seed in the database', () => {
       .select({ recordType: auditEntries.recordType, recordId: auditEntries.recordId, userId: auditEntries.userId, userName: auditEntries.userName })
       .from(auditEntries)
       .where(eq(auditEntries.action, seedAuditAction));
+    // The scenario's rows, plus what the computation seeds add: risk scale version 1, the clock
+    // settings (three due-day targets and the site time zone) and the site closures.
+    const clockSettings = 4;
     const expected =
       scenario.users.length +
       scenario.settings.length +
+      clockSettings +
       scenario.products.length +
       scenario.machines.length +
       scenario.rings.length +
       scenario.defects.length +
-      scenario.batches.length;
+      scenario.batches.length +
+      1 +
+      demoClosures.length;
     expect(entries).toHaveLength(expected);
     expect(entries.every((e) => e.userId === adminUser!.id && e.userName === adminUser!.name)).toBe(true);
 
     const perType = (t: string) => entries.filter((e) => e.recordType === t);
     expect(perType('batch')).toHaveLength(scenario.batches.length);
     expect(perType('filling_ring')).toHaveLength(scenario.rings.length);
+    expect(perType('risk_scale')).toHaveLength(1);
+    expect(perType('site_closure')).toHaveLength(demoClosures.length);
+    expect(perType('setting')).toHaveLength(scenario.settings.length + clockSettings);
     // Each batch row has its own entry, not several on one id.
     expect(new Set(perType('batch').map((e) => e.recordId)).size).toBe(scenario.batches.length);
 
