@@ -36,6 +36,8 @@ export const products = mysqlTable(
     targetFillMg: decimal('target_fill_mg', { precision: 8, scale: 2 }).notNull(),
     fillLowerMg: decimal('fill_lower_mg', { precision: 8, scale: 2 }).notNull(),
     fillUpperMg: decimal('fill_upper_mg', { precision: 8, scale: 2 }).notNull(),
+    /** Tapped bulk density of the fill powder (g/mL), for the fill-weight sanity check. */
+    tappedDensityGPerMl: decimal('tapped_density_g_per_ml', { precision: 5, scale: 3 }),
     active: boolean('active').notNull().default(true),
     version: version(),
     createdAt: createdAt(),

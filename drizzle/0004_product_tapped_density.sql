@@ -1,0 +1,1 @@
+ALTER TABLE `products` ADD `tapped_density_g_per_ml` decimal(5,3);
