@@ -82,3 +82,18 @@ export function dietarySupplementRecordRetention(basis: DietarySupplementRecordB
       'Without shelf life dating, records are kept for 2 years beyond the date of distribution of the last batch of dietary supplements associated with them.',
   };
 }
+
+/**
+ * A batch's records, by what the product is: a drug (21 CFR 211.180(a)) or a dietary supplement
+ * (21 CFR 111.605(a)), both counted from the batch's expiration (shelf life) date. Null when the batch
+ * carries no such date, since the rule then runs from distribution, which the batch list does not know.
+ */
+export function batchRecordRetention(batch: {
+  regulatoryClass: 'drug' | 'supplement';
+  expiresOn: IsoDate | null;
+}): Retention | null {
+  if (!batch.expiresOn) return null;
+  return batch.regulatoryClass === 'drug'
+    ? drugBatchRecordRetention({ kind: 'expiry', expiresOn: batch.expiresOn })
+    : dietarySupplementRecordRetention({ kind: 'shelf_life', shelfLifeDate: batch.expiresOn });
+}

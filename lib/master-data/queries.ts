@@ -26,6 +26,8 @@ export interface BatchRowDto {
   status: BatchStatus;
   /** YYYY-MM-DD, the plant's calendar date. */
   manufacturedOn: string;
+  expiresOn: string | null;
+  regulatoryClass: 'drug' | 'supplement';
 }
 
 export interface BatchPage {
@@ -86,6 +88,8 @@ export async function listBatches(
             sizeCapsules: batches.sizeCapsules,
             status: batches.status,
             manufacturedOn: batches.manufacturedOn,
+            expiresOn: batches.expiresOn,
+            regulatoryClass: products.regulatoryClass,
           })
           .from(batches)
           .innerJoin(products, eq(products.id, batches.productId))

@@ -4,6 +4,7 @@ import { BatchStatusBadge } from '@/components/ui/batch-status';
 import { PageHeader } from '@/components/ui/page-header';
 import { Pagination } from '@/components/ui/pagination';
 import { requirePageUser } from '@/lib/auth/session';
+import { batchRecordRetention } from '@/lib/clocks';
 import {
   type BatchStatus,
   batchStatusLabels,
@@ -22,6 +23,20 @@ function hrefFor(page: number, status: BatchStatus | null): string {
   if (page > 1) params.set('page', String(page));
   const query = params.toString();
   return query ? `/batches?${query}` : '/batches';
+}
+
+/** How long the batch's records must be kept, and the rule (21 CFR 211.180(a) or 111.605(a)). */
+function RetentionCell({ batch }: { batch: { regulatoryClass: 'drug' | 'supplement'; expiresOn: string | null } }) {
+  const retention = batchRecordRetention(batch);
+  if (!retention) return <span className="text-ink-600">No expiry date: from distribution</span>;
+  return (
+    <span className="flex flex-col">
+      <span className="whitespace-nowrap tabular-nums">{retention.retainUntil}</span>
+      <span className="text-sm text-ink-600" title={retention.rule}>
+        {retention.citation}
+      </span>
+    </span>
+  );
 }
 
 export default async function BatchesPage({ searchParams }: PageProps<'/batches'>) {
@@ -95,6 +110,7 @@ export default async function BatchesPage({ searchParams }: PageProps<'/batches'
                 <th scope="col" className="px-4 py-3 text-right font-semibold">Size (capsules)</th>
                 <th scope="col" className="px-4 py-3 font-semibold">Status</th>
                 <th scope="col" className="px-4 py-3 font-semibold">Manufactured on</th>
+                <th scope="col" className="px-4 py-3 font-semibold">Keep records until</th>
               </tr>
             </thead>
             <tbody>
@@ -114,6 +130,9 @@ export default async function BatchesPage({ searchParams }: PageProps<'/batches'
                     <BatchStatusBadge status={b.status} />
                   </td>
                   <td className="px-4 py-3 whitespace-nowrap tabular-nums">{b.manufacturedOn}</td>
+                  <td className="px-4 py-3">
+                    <RetentionCell batch={b} />
+                  </td>
                 </tr>
               ))}
             </tbody>

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  batchRecordRetention,
   complaintRecordRetention,
   dietarySupplementRecordRetention,
   drugBatchRecordRetention,
@@ -42,5 +43,21 @@ describe('record retention', () => {
     expect(dietarySupplementRecordRetention({ kind: 'distribution', lastBatchDistributedOn: '2026-11-02' }).retainUntil).toBe(
       '2028-11-02',
     );
+  });
+});
+
+describe('batch record retention by product class', () => {
+  it('keeps a drug batch’s records 1 year past its expiration date (21 CFR 211.180(a))', () => {
+    const r = batchRecordRetention({ regulatoryClass: 'drug', expiresOn: '2028-10-31' });
+    expect(r).toMatchObject({ retainUntil: '2029-10-31', citation: '21 CFR 211.180(a)' });
+  });
+
+  it('keeps a supplement batch’s records 1 year past its shelf life date (21 CFR 111.605(a))', () => {
+    const r = batchRecordRetention({ regulatoryClass: 'supplement', expiresOn: '2028-02-29' });
+    expect(r).toMatchObject({ retainUntil: '2029-03-01', citation: '21 CFR 111.605(a)' });
+  });
+
+  it('gives no date when the batch carries no expiration date (the rule then runs from distribution)', () => {
+    expect(batchRecordRetention({ regulatoryClass: 'drug', expiresOn: null })).toBeNull();
   });
 });
