@@ -5,9 +5,12 @@ import { mean } from './stats';
  * X̄–R constants are tabulated for subgroups of 2 to 10, the subgroup is the first n units of each
  * check (n = 10, or fewer when a check has fewer units).
  *
- * Constants: NIST/SEMATECH e-Handbook of Statistical Methods §6.3.2 (Shewhart X̄ and R charts) and
- * ASTM E2587, table of control-chart factors. d3 is listed so the tests can derive A2 = 3/(d2·√n),
- * D3 = max(0, 1 − 3·d3/d2) and D4 = 1 + 3·d3/d2 independently of the tabulated values.
+ * Constants: the standard table of control-chart factors as given in ASTM E2587 and the
+ * NIST/SEMATECH e-Handbook of Statistical Methods §6.3.2 (Shewhart X̄ and R charts). Every value for
+ * n = 2…10 was checked against published reprints of that table (A2, d2, d3, D3, D4 to three places)
+ * and a published computed table of d2 and d3 to four places; the originals themselves were not
+ * consulted. d3 is listed so the tests can derive A2 = 3/(d2·√n), D3 = max(0, 1 − 3·d3/d2) and
+ * D4 = 1 + 3·d3/d2 independently of the tabulated values.
  */
 
 export interface ChartConstants {
@@ -40,7 +43,11 @@ export function constantsFor(n: number): ChartConstants {
   return c;
 }
 
-/* Western Electric Statistical Quality Control Handbook (1956), zone tests on the X̄ chart. */
+/*
+ * Western Electric Statistical Quality Control Handbook (1956), the four zone tests on one half of
+ * the X̄ chart: 1 point beyond 3σ; 2 of 3 beyond 2σ; 4 of 5 beyond 1σ; 8 in a row on one side.
+ * Checked against published summaries of the handbook's rules, not the handbook itself.
+ */
 export const runRules = {
   1: 'One point beyond 3σ',
   2: '2 of 3 successive points beyond 2σ on the same side',

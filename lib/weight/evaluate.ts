@@ -121,7 +121,7 @@ function usp905Rules(r: Usp905Result): RuleResult[] {
 }
 
 function usp2091Rules(r: Usp2091Result): RuleResult[] {
-  const source = 'USP <2091> (limits from memory; confirm against the official text)';
+  const source = 'USP <2091> Weight Variation of Dietary Supplements, Hard Shell Capsules';
   const rules: RuleResult[] = [];
   if (r.given < 20) {
     return [{ id: 'usp2091_sample', label: '20 capsules weighed', source, status: 'incomplete', detail: `${r.given} of 20 capsules entered.` }];

@@ -1,7 +1,8 @@
 import { beyond, mean, percentDeviation } from './stats';
 
 /*
- * Ph. Eur. 2.9.5 Uniformity of mass of single-dose preparations, applied to hard capsules.
+ * Ph. Eur. 2.9.5 Uniformity of mass of single-dose preparations (monograph 01/2008:20905, same text in
+ * Ph. Eur. 6.0 and 11), applied to hard capsules; checked against the published chapter text.
  * 20 units; the limit depends on the average mass (Table 2.9.5.-1, capsules: less than 300 mg
  * 10 %, 300 mg or more 7.5 %). The preparation complies when not more than 2 individual masses
  * deviate from the average by more than the percentage and none deviates by more than twice it.

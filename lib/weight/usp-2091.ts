@@ -1,28 +1,28 @@
 import { beyond, mean, percentDeviation } from './stats';
 
 /*
- * USP <2091> Weight Variation of Dietary Supplements, hard capsules. A staged procedure; the
- * numbers below are reproduced from memory of the chapter (it follows the older USP weight
- * variation test for hard capsules) and should be confirmed against the current official text:
+ * USP <2091> Weight Variation of Dietary Supplements, section Capsules, "Hard Shell Capsules"
+ * ("Hard Capsules" in USP 32–NF 27; the procedure is unchanged in the revision official
+ * 1 December 2019). Checked against the published chapter text. In our words:
  *
- *   Screen (from memory): weigh 20 intact capsules individually; if every gross mass is within
- *     90 %–110 % of the average gross mass, the requirement is met.
- *   Stage 1 (from memory): otherwise, determine the net content of each of the 20 (gross minus its
- *     shell). Met if not more than 2 differ from the average net content by more than 10 % and
+ *   Screen: 20 intact capsules weighed one by one; if each gross mass lies within 90 %–110 % of
+ *     their average, the requirement is met.
+ *   Stage 1: otherwise the same 20 are emptied and each net content is gross minus its own shell.
+ *     Met when at most 2 net contents differ from the average net content by more than 10 % and
  *     none by more than 25 %.
- *   Stage 2 (from memory): if more than 2 but not more than 6 differ by more than 10 % (and none by
- *     more than 25 %), determine the net content of 40 more; with all 60, met if not more than 6
- *     differ from the new average by more than 10 % and none by more than 25 %.
+ *   Stage 2: when more than 2 but at most 6 lie between 10 % and 25 % from the average, 40 more
+ *     capsules are emptied; against the average of all 60, met when at most 6 differ by more
+ *     than 10 % and none by more than 25 %.
  */
 
 export const usp2091Stage1Size = 20;
 export const usp2091Stage2Size = 60;
-/** From memory: the screen on intact capsules, ±10 % of the average gross mass. */
+/** USP <2091>, Hard Shell Capsules: the intact-capsule screen, ±10 % of the average gross mass. */
 export const usp2091ScreenPercent = 10;
-/** From memory: the net-content limits, 10 % (a few allowed) and 25 % (none allowed). */
+/** USP <2091>, Hard Shell Capsules: net-content limits, 10 % (a few allowed) and 25 % (none allowed). */
 export const usp2091Percent = 10;
 export const usp2091OuterPercent = 25;
-/** From memory: stage 1 allows 2 beyond 10 %; 3 to 6 sends the test to stage 2, which allows 6 of 60. */
+/** USP <2091>, Hard Shell Capsules: 2 of 20 beyond 10 % allowed; 3 to 6 send the test to 60 units, of which 6 may be beyond. */
 export const usp2091Stage1Allowed = 2;
 export const usp2091Stage2Trigger = 6;
 export const usp2091Stage2Allowed = 6;

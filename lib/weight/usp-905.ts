@@ -1,13 +1,17 @@
 import { beyond, mean, sampleSd } from './stats';
 
 /*
- * USP <905> Uniformity of Dosage Units, weight variation, applied to hard capsules. Each unit's
- * content is estimated from its net mass assuming the drug is evenly distributed:
- * x_i = w_i × A / W̄ (A: assay result, % of label claim; W̄: mean net mass of the units tested).
- * Acceptance value AV = |M − X̄| + k·s, with k = 2.4 for 10 units and 2.0 for 30, and the reference
- * value M chosen from X̄ and the target T (% label claim at manufacture, 100 unless the monograph
- * says otherwise). Stage 1: 10 units, AV ≤ L1 (15.0). Otherwise stage 2: 20 more, and with all 30
- * AV ≤ L1 and no unit outside (1 − 0.01·L2)M … (1 + 0.01·L2)M, L2 = 25.0.
+ * USP <905> Uniformity of Dosage Units, weight variation, applied to hard capsules (text harmonised
+ * with Ph. Eur. 2.9.40 and JP 6.02). Table 2 was checked against a published reproduction of it:
+ * AV = |M − X̄| + k·s, k = 2.4 for 10 units and 2.0 for 30; M = X̄ clamped to 98.5…101.5 when
+ * T ≤ 101.5 and to 98.5…T when T > 101.5 (T: target content at manufacture, % label claim, 100 unless
+ * stated); L1 = 15.0; L2 = 25.0, no unit below (1 − 0.01·L2)M or above (1 + 0.01·L2)M. Stages (USP
+ * <905> Table 3, as described in the same reproductions and ASTM E2810): 10 units, met when
+ * AV ≤ L1; otherwise 20 more, met when the AV of all 30 ≤ L1 and every unit is within the L2 range.
+ *
+ * From memory (the chapter's weight-variation section was not reached in a published copy): each
+ * unit's content is estimated from its net mass assuming even distribution, x_i = w_i × A / W̄, with
+ * A the assay result (% label claim) and W̄ the mean net mass of the units in that stage.
  */
 
 export const usp905L1 = 15.0;
@@ -15,7 +19,7 @@ export const usp905L2 = 25.0;
 export const usp905Stage1Size = 10;
 export const usp905Stage2Size = 30;
 
-/** The acceptability constant k for the number of units tested (USP <905>, Table 2). */
+/** The acceptability constant k for the number of units tested (USP <905> Uniformity of Dosage Units, Table 2). */
 export function usp905K(n: 10 | 30): number {
   return n === 10 ? 2.4 : 2.0;
 }

@@ -3,10 +3,11 @@ import { describe, expect, it } from 'vitest';
 import { chartConstants, constantsFor, westernElectricFlags, xBarRChart } from '@/lib/weight/control-chart';
 
 /*
- * X̄–R constants: NIST/SEMATECH e-Handbook §6.3.2 and ASTM E2587 (table of control-chart factors),
- * reproduced here from memory of that table and checked two independent ways: d2 by numerical
- * integration of the expected range of n standard normal values, and A2, D3, D4 from d2 and d3.
- * Run rules: Western Electric Statistical Quality Control Handbook (1956).
+ * X̄–R constants: the table of control-chart factors of ASTM E2587 and NIST/SEMATECH e-Handbook
+ * §6.3.2, checked value by value against published reprints of that table, and here also two
+ * independent ways: d2 by numerical integration of the expected range of n standard normal values,
+ * and A2, D3, D4 from d2 and d3. Run rules: Western Electric Statistical Quality Control Handbook
+ * (1956), as given in published summaries of its four zone tests.
  */
 
 const published: [number, number, number, number, number][] = [

@@ -84,7 +84,7 @@ describe('evaluating a weight check', () => {
     expect(evaluateWeightCheck({ ...wide, massesMg: Array(10).fill(500), assayPercent: 97 }).rules[0]!.detail).toMatch(/= \|98\.50 − 97\.00\| \+ 2\.4 × 0\.00 = 1\.50/);
   });
 
-  it('USP <2091> (from memory): screen, stage 1 and stage 2 rules', () => {
+  it('USP <2091> Weight Variation of Dietary Supplements, Hard Shell Capsules: screen, stage 1 and stage 2 rules', () => {
     const s2091 = { ...base, method: 'usp_2091' as const, product: { targetMg: 400, lowerMg: 300, upperMg: 500 } };
     const screened = evaluateWeightCheck({ ...s2091, massMode: 'gross', shellMassMg: 100, massesMg: sampleWithMean(500, []) });
     expect(screened.rules[0]).toMatchObject({ id: 'usp2091_screen', status: 'pass' });

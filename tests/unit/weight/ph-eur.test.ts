@@ -2,7 +2,10 @@ import { describe, expect, it } from 'vitest';
 import { evaluatePhEur, phEurPercentLimit } from '@/lib/weight/ph-eur-2-9-5';
 import { sampleWithMean } from './helpers';
 
-/* Ph. Eur. 2.9.5 Uniformity of mass, hard capsules (Table 2.9.5.-1: < 300 mg 10 %, ≥ 300 mg 7.5 %). */
+/*
+ * Ph. Eur. 2.9.5 Uniformity of mass of single-dose preparations (01/2008:20905), capsules: 20 content
+ * masses; Table 2.9.5.-1: < 300 mg 10 %, ≥ 300 mg 7.5 %; ≤ 2 beyond the limit, none beyond twice it.
+ */
 
 describe('Ph. Eur. 2.9.5 percentage limit by average mass (Table 2.9.5.-1, capsules)', () => {
   it('is 10 % below 300 mg and 7.5 % from 300 mg', () => {

@@ -3,9 +3,10 @@ import { acceptanceValue, estimatedContents, evaluateUsp905, referenceValue, usp
 import { sampleSd } from '@/lib/weight/stats';
 
 /*
- * USP <905> Uniformity of Dosage Units, weight variation (Table 2): AV = |M − X̄| + k·s, k = 2.4 for
- * n = 10 and 2.0 for n = 30, L1 = 15.0, L2 = 25.0; reference value M by case T ≤ 101.5 / T > 101.5;
- * contents estimated as x_i = w_i × A / W̄.
+ * USP <905> Uniformity of Dosage Units (harmonised with Ph. Eur. 2.9.40, JP 6.02), Table 2, checked
+ * against a published reproduction: AV = |M − X̄| + k·s, k = 2.4 for n = 10 and 2.0 for n = 30,
+ * L1 = 15.0, L2 = 25.0; reference value M by case T ≤ 101.5 / T > 101.5. Contents estimated as
+ * x_i = w_i × A / W̄ (from memory of the weight-variation section).
  */
 
 const fiveAndFive = (centre: number, d: number) => [...Array(5).fill(centre - d), ...Array(5).fill(centre + d)] as number[];
@@ -44,7 +45,7 @@ describe('USP <905> reference value M, case T > 101.5 (T = 105)', () => {
 });
 
 describe('USP <905> acceptance value from weights', () => {
-  it('estimates contents as w_i × A / W̄', () => {
+  it('estimates contents as w_i × A / W̄ (from memory)', () => {
     expect(estimatedContents([90, 110], 98)).toEqual([88.2, 107.8]);
   });
 
