@@ -97,6 +97,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
       targetFillMg: decimal(p.targetFillMg),
       fillLowerMg: decimal(p.fillLowerMg),
       fillUpperMg: decimal(p.fillUpperMg),
+      tappedDensityGPerMl: p.tappedDensityGPerMl.toFixed(3),
     };
     const [row] = await tx.insert(products).values(values).$returningId();
     productIds.set(p.code, row!.id);

@@ -31,6 +31,12 @@ export interface ProductSeed {
   targetFillMg: number;
   fillLowerMg: number;
   fillUpperMg: number;
+  /**
+   * Tapped bulk density of the fill powder, g/mL, for fill-weight planning. Plausible values for
+   * each kind of powder (common practice), chosen so the target fits its size; the vitamin C target
+   * is deliberately tight in a size 0.
+   */
+  tappedDensityGPerMl: number;
   /** Expiry (supplements) or beyond-use date (the compounded drug) after manufacture. */
   shelfLifeMonths: number;
 }
@@ -103,6 +109,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'gelatin',
     regulatoryClass: 'supplement',
     targetFillMg: 640,
+    tappedDensityGPerMl: 0.8,
     shelfLifeMonths: 24,
   }),
   product({
@@ -113,6 +120,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'hpmc',
     regulatoryClass: 'supplement',
     targetFillMg: 500,
+    tappedDensityGPerMl: 0.6,
     shelfLifeMonths: 24,
   }),
   product({
@@ -123,6 +131,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'hpmc',
     regulatoryClass: 'supplement',
     targetFillMg: 350,
+    tappedDensityGPerMl: 0.58,
     shelfLifeMonths: 18,
   }),
   product({
@@ -133,6 +142,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'gelatin',
     regulatoryClass: 'supplement',
     targetFillMg: 450,
+    tappedDensityGPerMl: 0.72,
     shelfLifeMonths: 24,
   }),
   product({
@@ -143,6 +153,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'gelatin',
     regulatoryClass: 'supplement',
     targetFillMg: 560,
+    tappedDensityGPerMl: 0.85,
     shelfLifeMonths: 24,
   }),
   product({
@@ -153,6 +164,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'gelatin',
     regulatoryClass: 'supplement',
     targetFillMg: 300,
+    tappedDensityGPerMl: 0.7,
     shelfLifeMonths: 24,
   }),
   product({
@@ -163,6 +175,7 @@ const products: ProductSeed[] = [
     shellMaterial: 'gelatin',
     regulatoryClass: 'drug',
     targetFillMg: 280,
+    tappedDensityGPerMl: 0.62,
     limitPercent: 5,
     shelfLifeMonths: 6,
   }),

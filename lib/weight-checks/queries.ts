@@ -74,6 +74,16 @@ export async function getWeightBatch(id: number, database: DbOrTx = db): Promise
   return row ? toBatchDto(row) : null;
 }
 
+/** The product's tapped bulk density (g/mL) for fill-weight planning; null when none is recorded. */
+export async function getProductTappedDensity(productId: number, database: DbOrTx = db): Promise<number | null> {
+  const [row] = await database
+    .select({ density: products.tappedDensityGPerMl })
+    .from(products)
+    .where(eq(products.id, productId))
+    .limit(1);
+  return row && row.density !== null ? Number(row.density) : null;
+}
+
 /** Lots that take checks now, newest first, for the lot-number suggestions. */
 export async function listOpenLots(limit = 30, database: DbOrTx = db): Promise<{ lotNumber: string; productName: string }[]> {
   return database

@@ -6,6 +6,9 @@
  * per size; sizes are the same for gelatin and HPMC shells.
  */
 
+/** Where the nominal volumes come from, for the screen to cite beside the planning line. */
+export const capsuleVolumeSource = 'UNC Eshelman School of Pharmacy, pharmaceutics labs, "Hard Gelatin Capsules" table';
+
 export const capsuleSizeOrder = ['000', '00', '0', '1', '2', '3', '4', '5'] as const;
 export type CapsuleSize = (typeof capsuleSizeOrder)[number];
 

@@ -3,12 +3,13 @@ import { buttonClasses } from '@/components/ui/button';
 import { Notice } from '@/components/ui/notice';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
+import { FillPlanningLine } from '@/components/weight/fill-planning-line';
 import { RecentChecks } from '@/components/weight/recent-checks';
 import { WeightCheckForm } from '@/components/weight/weight-check-form';
 import { XBarRChart } from '@/components/weight/xbar-r-chart';
 import { can } from '@/lib/auth/permissions';
 import { requirePageUser } from '@/lib/auth/session';
-import { getWeightBatchByLot, listBatchWeightChecks, listOpenLots } from '@/lib/weight-checks/queries';
+import { getProductTappedDensity, getWeightBatchByLot, listBatchWeightChecks, listOpenLots } from '@/lib/weight-checks/queries';
 import { batchStatusesTakingChecks } from '@/lib/weight-checks/types';
 import { cpk, xBarRChart } from '@/lib/weight';
 import { submitWeightCheck } from './actions';
@@ -26,7 +27,9 @@ export default async function WeightChecksPage({ searchParams }: { searchParams:
     returnTo: lot ? `/weight-checks?lot=${encodeURIComponent(lot)}` : '/weight-checks',
   });
   const [batch, openLots] = await Promise.all([lot ? getWeightBatchByLot(lot) : null, listOpenLots()]);
-  const checks = batch ? await listBatchWeightChecks(batch.id) : [];
+  const [checks, tappedDensity] = batch
+    ? await Promise.all([listBatchWeightChecks(batch.id), getProductTappedDensity(batch.product.id)])
+    : [[], null];
   const chart = xBarRChart(checks.map((c) => ({ label: c.checkedAt, values: c.netMassesMg })));
   const chartLabels = checks.map((c) => `${c.checkedAt.slice(5, 10)} ${c.checkedAt.slice(11, 16)}`);
   const takesChecks = batch !== null && (batchStatusesTakingChecks as readonly string[]).includes(batch.status);
@@ -104,6 +107,9 @@ export default async function WeightChecksPage({ searchParams }: { searchParams:
                 <dd className="font-semibold">{batch.ring?.serial ?? '—'}</dd>
               </div>
             </dl>
+            <div className="mt-4 border-t border-ink-200 pt-3">
+              <FillPlanningLine product={batch.product} tappedDensityGPerMl={tappedDensity} />
+            </div>
           </section>
 
           {recorded ? (
