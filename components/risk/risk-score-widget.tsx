@@ -161,6 +161,12 @@ export function RiskScoreWidget({
           </>
         ) : (
           <>
+            {defaultClassification === 'critical' ? (
+              // A critical defect means quarantine before anything else, whatever the score will be.
+              <Notice tone="danger" title="Quarantine first" live={false}>
+                {caution ?? quarantineCaution}
+              </Notice>
+            ) : null}
             <p className="text-ink-700">Choose a score on {missing.join(', ')} to see the RPN, action priority and classification.</p>
             <RiskMatrix position={null} />
           </>

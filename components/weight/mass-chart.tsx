@@ -59,6 +59,16 @@ export function MassChart({ evaluation, limits }: { evaluation: WeightEvaluation
   const outside = (v: number) => v < limits.lowerMg || v > limits.upperMg;
   const ticks = Array.from({ length: 5 }, (_, i) => lo + ((hi - lo) * i) / 4);
   const nOutside = evaluation.outside.below + evaluation.outside.above;
+  // Lines close together (e.g. the chapter's ±7.5 % and product limits at target ± 7.5 %) would
+  // print their labels over each other: spread the labels, top to bottom, at least one text line apart.
+  const labelGap = 13;
+  const labelY = new Map<Line, number>();
+  let previous = -Infinity;
+  for (const l of [...lines].sort((a, b) => y(a.y) - y(b.y))) {
+    const at = Math.max(y(l.y) + 4, previous + labelGap);
+    labelY.set(l, at);
+    previous = at;
+  }
 
   return (
     <figure className="flex flex-col gap-2">
@@ -85,7 +95,7 @@ export function MassChart({ evaluation, limits }: { evaluation: WeightEvaluation
               strokeWidth={l.kind === 'average' ? 2 : 1.5}
               strokeDasharray={l.kind === 'chapter' ? '6 4' : l.kind === 'product' ? '2 3' : undefined}
             />
-            <text x={width - right + 6} y={y(l.y) + 4} fontSize="11" fill="#1c2b39">
+            <text x={width - right + 6} y={labelY.get(l) ?? y(l.y) + 4} fontSize="11" fill="#1c2b39">
               {l.label} {l.y.toFixed(1)}
             </text>
           </g>

@@ -41,7 +41,9 @@ export default async function SiteCalendarPage() {
   const today = todayIn(timeZone, new Date());
   const [dueDays, closures] = await Promise.all([
     getDueDaySettings(),
-    listSiteClosures({ from: addDays(today, -365), to: addDays(today, 400) }),
+    // The past year for reference, and every future closure however far ahead (a site has a handful a
+    // year), so an administrator can always see and deactivate what was added.
+    listSiteClosures({ from: addDays(today, -365), to: '2199-12-31' }),
   ]);
   const usesDefault = Object.values(dueDays).some((d) => d.source === 'default');
   // Worked examples of the retention rules, from today, so the rule reads with a real date.
