@@ -1,0 +1,189 @@
+/*
+ * Deviation lifecycle. Someone on the floor or in QA writes a draft about what went wrong and
+ * submits it; submitting reports it and puts the batches it names on hold. A QA investigator starts
+ * triage, classifies it and either, for a minor deviation, has a QA approver close it at once with a
+ * written justification and an "approved" signature, or assigns an investigator and opens the
+ * investigation. The assigned investigator finishes the investigation and submits it for approval,
+ * signing as its author. A QA approver either returns it for rework with a comment or approves it with
+ * an "approved" signature, which gives each held batch its disposition. Closing, either way, needs a
+ * disposition for every held batch. Until it is in approval, QA may cancel a deviation raised in error
+ * or twice, with a reason and a signature. Closed and cancelled are final.
+ *
+ * Segregation of duties is a rule, not a habit: nobody approves, closes or cancels a deviation they
+ * raised or investigated, because a second person's judgement is the point of the signature.
+ *
+ * Guards read only the actor and the context (the stored record), never the event's payload, so the
+ * write path can ask which events a person may send before they type anything. Each transition's
+ * `meta` says what it asks of that person: a reason, a signature and its meaning. Actions only name
+ * an effect; lib/ performs it.
+ */
+import { setup } from 'xstate';
+import type { DeviationState } from './states';
+
+export interface DeviationActor {
+  id: number;
+  role: string;
+}
+
+export type DeviationClassification = 'critical' | 'major' | 'minor';
+
+/** What the guards know about the stored deviation (a type, not an interface, so it is a plain record). */
+export type DeviationContext = {
+  raisedBy: number;
+  investigatorId: number | null;
+  classification: DeviationClassification | null;
+  /** Batches this deviation put on hold that have no disposition yet. */
+  heldBatchesWithoutDisposition: number;
+};
+
+export const deviationEvents = [
+  'submit',
+  'start_triage',
+  'close_minor',
+  'assign_investigation',
+  'submit_for_approval',
+  'return_for_rework',
+  'approve',
+  'cancel',
+] as const;
+export type DeviationEventType = (typeof deviationEvents)[number];
+export type DeviationEvent = { type: DeviationEventType; actor: DeviationActor };
+
+export interface DeviationTransitionRules {
+  reason?: 'required';
+  signature?: 'authored' | 'approved';
+}
+
+const floorAndQa: readonly string[] = ['operator', 'supervisor', 'qa_investigator', 'qa_approver'];
+const qa: readonly string[] = ['qa_investigator', 'qa_approver'];
+
+type GuardArgs = { context: DeviationContext; event: DeviationEvent };
+
+function independentOfRecord({ context, event }: GuardArgs): boolean {
+  return event.actor.id !== context.raisedBy && event.actor.id !== context.investigatorId;
+}
+
+function independentQaApprover(args: GuardArgs): boolean {
+  return args.event.actor.role === 'qa_approver' && independentOfRecord(args);
+}
+
+export const deviationMachine = setup({
+  types: {
+    context: {} as DeviationContext,
+    events: {} as DeviationEvent,
+    transitionMeta: {} as DeviationTransitionRules,
+  },
+  guards: {
+    byItsAuthor: ({ context, event }) => floorAndQa.includes(event.actor.role) && event.actor.id === context.raisedBy,
+    byQaInvestigator: ({ event }) => event.actor.role === 'qa_investigator',
+    byQaInvestigatorOnceAssigned: ({ context, event }) =>
+      event.actor.role === 'qa_investigator' && context.investigatorId !== null,
+    minorByIndependentApproverWithBatchesDisposed: (args) =>
+      args.context.classification === 'minor' &&
+      args.context.heldBatchesWithoutDisposition === 0 &&
+      independentQaApprover(args),
+    byAssignedInvestigator: ({ context, event }) =>
+      event.actor.role === 'qa_investigator' && event.actor.id === context.investigatorId,
+    byQaApprover: ({ event }) => event.actor.role === 'qa_approver',
+    byIndependentApproverWithBatchesDisposed: (args) =>
+      args.context.heldBatchesWithoutDisposition === 0 && independentQaApprover(args),
+    byIndependentQa: (args) => qa.includes(args.event.actor.role) && independentOfRecord(args),
+  },
+  actions: {
+    // Named here, performed by lib/ inside the transaction that makes the change.
+    holdBatches: () => {},
+    notifyInvestigatorAssigned: () => {},
+    notifyApprovalRequested: () => {},
+    notifyReturnedForRework: () => {},
+    applyDispositions: () => {},
+    notifyClosed: () => {},
+  },
+}).createMachine({
+  id: 'deviation',
+  initial: 'draft' satisfies DeviationState,
+  // Every stored deviation is resolved with its own context; this one only serves a new draft, and
+  // its author id 0 matches no user, so nothing can be sent to it before the row exists.
+  context: { raisedBy: 0, investigatorId: null, classification: null, heldBatchesWithoutDisposition: 0 },
+  states: {
+    draft: {
+      on: {
+        submit: { target: 'reported', guard: 'byItsAuthor', actions: 'holdBatches' },
+        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+      },
+    },
+    reported: {
+      on: {
+        start_triage: { target: 'triage', guard: 'byQaInvestigator' },
+        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+      },
+    },
+    triage: {
+      on: {
+        close_minor: {
+          target: 'closed',
+          guard: 'minorByIndependentApproverWithBatchesDisposed',
+          actions: ['applyDispositions', 'notifyClosed'],
+          meta: { reason: 'required', signature: 'approved' },
+        },
+        assign_investigation: {
+          target: 'investigation',
+          guard: 'byQaInvestigatorOnceAssigned',
+          actions: 'notifyInvestigatorAssigned',
+        },
+        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+      },
+    },
+    investigation: {
+      on: {
+        submit_for_approval: {
+          target: 'approval',
+          guard: 'byAssignedInvestigator',
+          actions: 'notifyApprovalRequested',
+          // "Investigation complete": the investigator signs as the author of the investigation.
+          meta: { signature: 'authored' },
+        },
+        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+      },
+    },
+    approval: {
+      on: {
+        return_for_rework: {
+          target: 'investigation',
+          guard: 'byQaApprover',
+          actions: 'notifyReturnedForRework',
+          meta: { reason: 'required' },
+        },
+        approve: {
+          target: 'closed',
+          guard: 'byIndependentApproverWithBatchesDisposed',
+          actions: ['applyDispositions', 'notifyClosed'],
+          meta: { signature: 'approved' },
+        },
+      },
+    },
+    closed: { type: 'final' },
+    cancelled: { type: 'final' },
+  },
+});
+
+/**
+ * What a person is told when a guard turns them away. One guard per transition (the write path
+ * reports one guard by name), so each message names every condition that transition checks.
+ */
+export const deviationGuardRefusals: Record<keyof typeof deviationMachine.implementations.guards, string> = {
+  byItsAuthor: 'Only the person who raised this deviation can submit it.',
+  byQaInvestigator: 'Only a QA investigator can start the triage of a deviation.',
+  byQaInvestigatorOnceAssigned:
+    'Only a QA investigator can open the investigation, and only once an investigator has been assigned.',
+  minorByIndependentApproverWithBatchesDisposed:
+    'Only a minor deviation can be closed at triage, by a QA approver who neither raised nor investigated it ' +
+    '(segregation of duties), once every held batch has a disposition.',
+  byAssignedInvestigator: 'Only the investigator assigned to this deviation can submit its investigation for approval.',
+  byQaApprover: 'Only a QA approver can return an investigation for rework.',
+  byIndependentApproverWithBatchesDisposed:
+    'Only a QA approver who neither raised nor investigated this deviation can approve it (segregation of duties), ' +
+    'and only once every held batch has a disposition.',
+  byIndependentQa:
+    'Only a QA investigator or QA approver who neither raised nor investigated this deviation can cancel it ' +
+    '(segregation of duties).',
+};
