@@ -51,7 +51,7 @@ export type DeviationEvent = { type: DeviationEventType; actor: DeviationActor }
 
 export interface DeviationTransitionRules {
   reason?: 'required';
-  signature?: 'authored' | 'approved';
+  signature?: 'investigation_complete' | 'approved';
 }
 
 const floorAndQa: readonly string[] = ['operator', 'supervisor', 'qa_investigator', 'qa_approver'];
@@ -140,7 +140,7 @@ export const deviationMachine = setup({
           guard: 'byAssignedInvestigator',
           actions: 'notifyApprovalRequested',
           // "Investigation complete": the investigator signs as the author of the investigation.
-          meta: { signature: 'authored' },
+          meta: { signature: 'investigation_complete' },
         },
         cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
       },

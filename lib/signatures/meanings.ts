@@ -4,7 +4,15 @@
  * client, the workflows' tests and the schema.
  */
 
-export const signatureMeanings = ['authored', 'reviewed', 'approved', 'rejected', 'verified', 'responsible'] as const;
+export const signatureMeanings = [
+  'authored',
+  'reviewed',
+  'approved',
+  'rejected',
+  'verified',
+  'responsible',
+  'investigation_complete',
+] as const;
 export type SignatureMeaning = (typeof signatureMeanings)[number];
 
 /** How the meaning reads next to the printed name, e.g. "Approved by Henrike Mbeki-Strand". */
@@ -15,6 +23,7 @@ export const signatureMeaningLabels: Record<SignatureMeaning, string> = {
   rejected: 'Rejected',
   verified: 'Verified',
   responsible: 'Responsible',
+  investigation_complete: 'Investigation complete',
 };
 
 /** The sentence the signer reads before entering the password. */
@@ -25,6 +34,8 @@ export const signatureMeaningStatements: Record<SignatureMeaning, string> = {
   rejected: 'I reject this record as it stands.',
   verified: 'I have checked this myself and confirm it is correct.',
   responsible: 'I take responsibility for this record.',
+  investigation_complete:
+    'I have completed this investigation; the root cause, product impact and batch recommendations are as recorded.',
 };
 
 export function isSignatureMeaning(value: unknown): value is SignatureMeaning {

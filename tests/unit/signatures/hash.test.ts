@@ -82,7 +82,15 @@ describe('signature manifest hash', () => {
 
 describe('signature meanings', () => {
   it('are the closed list the product uses, each with a label and a statement', () => {
-    expect([...signatureMeanings]).toEqual(['authored', 'reviewed', 'approved', 'rejected', 'verified', 'responsible']);
+    expect([...signatureMeanings]).toEqual([
+      'authored',
+      'reviewed',
+      'approved',
+      'rejected',
+      'verified',
+      'responsible',
+      'investigation_complete',
+    ]);
     for (const m of signatureMeanings) {
       expect(signatureMeaningLabels[m]).toBeTruthy();
       expect(signatureMeaningStatements[m]).toMatch(/^I /);

@@ -21,7 +21,7 @@ import { type DeviationState, deviationStates } from '@/workflows/states';
  * person). Which role does which step, and that a second person signs, is common practice.
  */
 
-type Signature = 'authored' | 'approved';
+type Signature = 'investigation_complete' | 'approved';
 type Expectation = { to: DeviationState; roles: Role[]; reason: boolean; signature: Signature | null } | null;
 
 const floorAndQa: Role[] = ['operator', 'supervisor', 'qa_investigator', 'qa_approver'];
@@ -53,7 +53,7 @@ const expected: Record<DeviationState, Record<DeviationEventType, Expectation>> 
   investigation: {
     ...none,
     // 21 CFR 211.192 (conclusions recorded), 11.50 (meaning of the signature).
-    submit_for_approval: { to: 'approval', roles: ['qa_investigator'], reason: false, signature: 'authored' },
+    submit_for_approval: { to: 'approval', roles: ['qa_investigator'], reason: false, signature: 'investigation_complete' },
     cancel,
   },
   approval: {
@@ -192,7 +192,7 @@ describe('who may act on this deviation', () => {
   it('lets only the assigned investigator submit the investigation (21 CFR 211.192, 11.200(a))', () => {
     expect(send('investigation', ctx({ investigatorId: ACTOR }), 'submit_for_approval', { id: ACTOR, role: 'qa_investigator' })).toMatchObject({
       ok: true,
-      rules: { signature: 'authored' },
+      rules: { signature: 'investigation_complete' },
     });
     expect(send('investigation', ctx({ investigatorId: ANOTHER }), 'submit_for_approval', { id: ACTOR, role: 'qa_investigator' })).toEqual({
       ok: false,
