@@ -1,0 +1,385 @@
+import type { Metadata } from 'next';
+import Link from 'next/link';
+import { notFound } from 'next/navigation';
+import { DeviationStatusBadge, DispositionBadge } from '@/components/deviations/detail-badges';
+import { DeviationTimeline } from '@/components/deviations/detail-timeline';
+import { DeviationEventForm, type DeviationEventFormProps } from '@/components/deviations/event-form';
+import { TriageForm } from '@/components/deviations/triage-form';
+import { ClassificationBadge } from '@/components/risk/classification-badge';
+import { BatchStatusBadge } from '@/components/ui/batch-status';
+import { formatUtc } from '@/components/ui/format';
+import { Notice } from '@/components/ui/notice';
+import { PageHeader } from '@/components/ui/page-header';
+import { requirePageUser } from '@/lib/auth/session';
+import { todayIn } from '@/lib/clocks/dates';
+import { classifications, dueDateFor, dueDaysOf } from '@/lib/clocks/due-dates';
+import { type DeviationDetailDto, getDeviationDetail, listActiveInvestigators } from '@/lib/deviations/detail';
+import { classificationLabels } from '@/lib/deviations/labels';
+import { NotFoundError } from '@/lib/errors';
+import { quarantineCaution } from '@/lib/risk/classify';
+import { getCurrentRiskScales } from '@/lib/risk-scales/queries';
+import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
+import { getDueDaySettings, getSiteTimeZone } from '@/lib/site-calendar/queries';
+import type { DeviationEventType } from '@/workflows/deviation';
+import { submitDeviationEvent, submitTriage } from './actions';
+
+export const metadata: Metadata = { title: 'Deviation' };
+
+const doneMessages: Record<DeviationEventType | 'triage', string> = {
+  submit: 'The deviation is reported. Its batches are on hold and QA has it in the triage queue.',
+  start_triage: 'Triage has started.',
+  triage: 'The triage is saved.',
+  assign_investigation: 'The investigation is open. The investigator is told by e-mail.',
+  submit_for_approval: 'Submitted for approval. Your signature is recorded.',
+  return_for_rework: 'Returned to the investigator with your comment.',
+  approve: 'Approved and closed. Your signature is recorded and each held batch took its disposition.',
+  close_minor: 'Closed as minor. Your signature is recorded.',
+  cancel: 'The deviation is cancelled. Your signature is recorded.',
+};
+
+type Allowed = DeviationDetailDto['allowedEvents'][number];
+
+const formTexts: Record<DeviationEventType, Pick<DeviationEventFormProps, 'heading' | 'description' | 'submitLabel' | 'pendingLabel' | 'danger'> & { reasonLabel?: string; reasonHint?: string }> = {
+  submit: {
+    heading: 'Submit the deviation',
+    description: 'Gives it its DEV number, puts the chosen batches on hold and sends it to QA.',
+    submitLabel: 'Submit',
+    pendingLabel: 'Submitting…',
+  },
+  start_triage: {
+    heading: 'Start triage',
+    description: 'Take the deviation into triage to classify it and assign an investigator.',
+    submitLabel: 'Start triage',
+    pendingLabel: 'Starting…',
+  },
+  assign_investigation: {
+    heading: 'Open the investigation',
+    description: 'Hands the deviation to the assigned investigator, who is told by e-mail.',
+    submitLabel: 'Open the investigation',
+    pendingLabel: 'Opening…',
+  },
+  submit_for_approval: {
+    heading: 'Submit for approval',
+    description: 'Your signature says the investigation is complete; QA approvers are asked to review it.',
+    submitLabel: 'Sign and submit',
+    pendingLabel: 'Signing…',
+  },
+  return_for_rework: {
+    heading: 'Return for rework',
+    description: 'Sends the investigation back to the investigator. Say what is missing.',
+    submitLabel: 'Return for rework',
+    pendingLabel: 'Returning…',
+    reasonLabel: 'Comment for the investigator',
+    reasonHint: 'What needs more work. Recorded in the timeline with your name and the time.',
+  },
+  approve: {
+    heading: 'Approve and close',
+    description: 'Each held batch takes its disposition when you sign.',
+    submitLabel: 'Sign and approve',
+    pendingLabel: 'Signing…',
+  },
+  close_minor: {
+    heading: 'Close as minor',
+    description: 'Close this minor deviation at triage without a full investigation.',
+    submitLabel: 'Sign and close',
+    pendingLabel: 'Signing…',
+    reasonLabel: 'Justification',
+    reasonHint: 'Why no investigation is needed. Recorded with your signature.',
+  },
+  cancel: {
+    heading: 'Cancel the deviation',
+    description: 'Raised in error or a duplicate. Holds stay until each batch has a disposition.',
+    submitLabel: 'Sign and cancel',
+    pendingLabel: 'Signing…',
+    danger: true,
+    reasonLabel: 'Reason',
+    reasonHint: 'Why it is cancelled (e.g. the number of the deviation it duplicates).',
+  },
+};
+
+function formFor(detail: DeviationDetailDto, event: Allowed, signerName: string): DeviationEventFormProps {
+  const text = formTexts[event.type];
+  return {
+    action: submitDeviationEvent,
+    deviationId: detail.deviation.id,
+    version: detail.deviation.version,
+    event: event.type,
+    heading: text.heading,
+    description: text.description,
+    submitLabel: text.submitLabel,
+    pendingLabel: text.pendingLabel,
+    danger: text.danger,
+    reason: event.reasonRequired ? { label: text.reasonLabel ?? 'Reason', hint: text.reasonHint ?? 'Recorded with your name and the time.' } : undefined,
+    signature: event.signature
+      ? { meaningLabel: signatureMeaningLabels[event.signature], statement: signatureMeaningStatements[event.signature], signerName }
+      : undefined,
+  };
+}
+
+function noActionsText(status: DeviationDetailDto['deviation']['status']): string {
+  switch (status) {
+    case 'closed':
+      return 'This deviation is closed. Nothing more can be done to it.';
+    case 'cancelled':
+      return 'This deviation is cancelled. Nothing more can be done to it.';
+    default:
+      return 'Your role has nothing to do on this deviation at this stage.';
+  }
+}
+
+const dateOnly = (iso: string | null) => (iso ? iso.slice(0, 10) : null);
+
+function Row({ label, children }: { label: string; children: React.ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-600">{label}</dt>
+      <dd className="min-w-0 break-words">{children}</dd>
+    </>
+  );
+}
+
+export default async function DeviationPage({ params, searchParams }: PageProps<'/deviations/[id]'>) {
+  const { id: rawId } = await params;
+  const user = await requirePageUser('deviation.read', { returnTo: `/deviations/${encodeURIComponent(rawId)}` });
+  const id = /^\d{1,9}$/.test(rawId) ? Number(rawId) : NaN;
+  if (!Number.isSafeInteger(id) || id < 1) notFound();
+  const detail = await getDeviationDetail(id, user).catch((err: unknown) => {
+    if (err instanceof NotFoundError) notFound();
+    throw err;
+  });
+  const { deviation: d, defect } = detail;
+  const done = (await searchParams).done;
+  const doneMessage = typeof done === 'string' && done in doneMessages ? doneMessages[done as keyof typeof doneMessages] : null;
+  const critical = d.classification === 'critical' || (d.classification === null && defect?.defaultClassification === 'critical');
+
+  // The triage form is for QA while the deviation is in triage: exactly who may start or run triage.
+  const canTriage = d.status === 'triage' && detail.allowedEvents.some((e) => e.type === 'assign_investigation' || e.type === 'close_minor')
+    ? true
+    : d.status === 'triage' && user.role === 'qa_investigator';
+  const triage = canTriage ? await triageProps(detail) : null;
+  const title = d.number ?? 'Draft';
+
+  return (
+    <>
+      <p className="mb-2">
+        <Link href="/deviations" className="inline-flex min-h-11 items-center font-semibold underline underline-offset-4">
+          ← Deviations
+        </Link>
+      </p>
+      <PageHeader
+        title={`${title}: ${d.title}`}
+        description={
+          <dl className="mt-1 flex flex-wrap items-center gap-x-6 gap-y-2">
+            <div className="flex items-center gap-2">
+              <dt className="sr-only">Status</dt>
+              <dd>
+                <DeviationStatusBadge status={d.status} />
+              </dd>
+            </div>
+            <div className="flex items-center gap-2">
+              <dt>Classification</dt>
+              <dd>{d.classification ? <ClassificationBadge classification={d.classification} /> : <span className="text-ink-800">Not classified yet</span>}</dd>
+            </div>
+            <div className="flex items-center gap-2">
+              <dt>Due</dt>
+              <dd className="text-ink-800">{dateOnly(d.dueAt) ?? 'Not set'}</dd>
+            </div>
+            <div className="flex items-center gap-2">
+              <dt>Owner</dt>
+              <dd className="text-ink-800">{detail.ownerName ?? 'Not assigned'}</dd>
+            </div>
+          </dl>
+        }
+      />
+      {doneMessage ? (
+        <div className="mb-6">
+          <Notice tone="ok" title={doneMessage} />
+        </div>
+      ) : null}
+      {critical ? (
+        <div className="mb-6">
+          <Notice tone="danger" title="Quarantine first" live={false}>
+            {defect?.caution ?? quarantineCaution}
+          </Notice>
+        </div>
+      ) : null}
+
+      <div className="grid grid-cols-1 gap-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
+        <div className="flex min-w-0 flex-col gap-6">
+          <section aria-labelledby="what-heading" className="rounded-lg border border-ink-200 bg-white p-5">
+            <h2 id="what-heading" className="text-lg font-semibold">
+              What happened
+            </h2>
+            <p className="mt-2 whitespace-pre-line text-ink-900">{d.whatHappened}</p>
+            <dl className="mt-4 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
+              <Row label="Defect">{defect ? `${defect.name} (${defect.code})` : 'Not named'}</Row>
+              <Row label="Product">{detail.product ? `${detail.product.name} ${detail.product.strength} (${detail.product.code})` : 'Not named'}</Row>
+              <Row label="Lot">{detail.lotNumber ?? 'Not named'}</Row>
+              <Row label="Machine">{detail.machine ? `${detail.machine.name} (${detail.machine.assetTag})` : 'Not named'}</Row>
+              <Row label="Filling ring">
+                {detail.ring ? (
+                  <Link href={`/equipment/rings/${detail.ring.id}`} className="underline underline-offset-4">
+                    {detail.ring.serial}
+                  </Link>
+                ) : (
+                  'Not named'
+                )}
+              </Row>
+              <Row label="Capsules affected">{d.affectedCount ?? '—'}</Row>
+              {d.sampleDescription ? <Row label="Sample">{d.sampleDescription}</Row> : null}
+              <Row label="Occurred">{formatUtc(d.occurredAt)}</Row>
+              <Row label="Raised by">{detail.raisedByName}</Row>
+              {d.reportedAt ? <Row label="Reported">{formatUtc(d.reportedAt)}</Row> : null}
+              <Row label="Done at once">
+                {[d.lineStopped ? 'Line stopped' : null, d.capsulesSegregated ? 'Capsules segregated' : null].filter(Boolean).join(', ') || 'Nothing ticked'}
+                {d.immediateActions ? <span className="mt-1 block whitespace-pre-line">{d.immediateActions}</span> : null}
+              </Row>
+            </dl>
+            <h3 className="mt-5 font-semibold">Held batches</h3>
+            {detail.heldBatches.length === 0 ? (
+              <p className="text-ink-600">No batches are held by this deviation.</p>
+            ) : (
+              <div className="mt-2 overflow-x-auto">
+                <table className="w-full text-left">
+                  <caption className="sr-only">Batches held by this deviation, their status and disposition</caption>
+                  <thead>
+                    <tr className="border-b border-ink-200 text-sm text-ink-600">
+                      <th scope="col" className="py-2 pr-4">Lot</th>
+                      <th scope="col" className="py-2 pr-4">Batch status</th>
+                      <th scope="col" className="py-2 pr-4">Disposition</th>
+                    </tr>
+                  </thead>
+                  <tbody>
+                    {detail.heldBatches.map((b) => (
+                      <tr key={b.batchId} className="border-b border-ink-100 align-top">
+                        <td className="py-2 pr-4 font-semibold">
+                          {b.lotNumber}
+                          {b.onHold ? null : <span className="block text-sm font-normal text-ink-600">hold lifted</span>}
+                        </td>
+                        <td className="py-2 pr-4">
+                          <BatchStatusBadge status={b.batchStatus} />
+                        </td>
+                        <td className="py-2 pr-4">
+                          <DispositionBadge disposition={b.disposition} />
+                          {b.dispositionNote ? <span className="mt-1 block text-sm">{b.dispositionNote}</span> : null}
+                        </td>
+                      </tr>
+                    ))}
+                  </tbody>
+                </table>
+              </div>
+            )}
+          </section>
+
+          {d.classification || d.rpn !== null || d.investigatorId !== null ? (
+            <section aria-labelledby="triage-heading" className="rounded-lg border border-ink-200 bg-white p-5">
+              <h2 id="triage-heading" className="text-lg font-semibold">
+                Triage
+              </h2>
+              <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
+                <Row label="Classification">{d.classification ? classificationLabels[d.classification] : 'Not classified yet'}</Row>
+                <Row label="S · O · D">
+                  {d.severity ?? '–'} · {d.occurrence ?? '–'} · {d.detection ?? '–'}
+                </Row>
+                <Row label="RPN">{d.rpn ?? '—'}</Row>
+                {d.classificationReason ? <Row label="Reason">{d.classificationReason}</Row> : null}
+                <Row label="Investigator">{detail.investigatorName ?? 'Not assigned'}</Row>
+                <Row label="Due">{dateOnly(d.dueAt) ?? 'Not set'}</Row>
+              </dl>
+            </section>
+          ) : null}
+
+          {d.investigationReport || d.rootCause || d.rootCauseCategory || d.productImpact || d.capaRequired !== null ? (
+            <section aria-labelledby="investigation-heading" className="rounded-lg border border-ink-200 bg-white p-5">
+              <h2 id="investigation-heading" className="text-lg font-semibold">
+                Investigation
+              </h2>
+              <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
+                {d.rootCauseCategory ? <Row label="Root-cause category">{d.rootCauseCategory}</Row> : null}
+                {d.rootCause ? <Row label="Root cause">{d.rootCause}</Row> : null}
+                {d.productImpact ? <Row label="Product impact">{d.productImpact}</Row> : null}
+                {d.capaRequired !== null ? <Row label="CAPA needed">{d.capaRequired ? 'Yes' : 'No'}</Row> : null}
+              </dl>
+              {d.investigationReport ? (
+                // Shown as text: the report's rich-text rendering (sanitized on the server) belongs to the investigation screen.
+                <p className="mt-3 whitespace-pre-line text-ink-900">{d.investigationReport.replace(/<[^>]*>/g, '')}</p>
+              ) : null}
+            </section>
+          ) : null}
+
+          {d.closureJustification || d.cancelReason ? (
+            <section aria-labelledby="closure-heading" className="rounded-lg border border-ink-200 bg-white p-5">
+              <h2 id="closure-heading" className="text-lg font-semibold">
+                {d.cancelReason ? 'Cancellation' : 'Closure'}
+              </h2>
+              <p className="mt-2 whitespace-pre-line">{d.cancelReason ?? d.closureJustification}</p>
+              {d.closedAt ? <p className="mt-1 text-sm text-ink-600">{formatUtc(d.closedAt)}</p> : null}
+            </section>
+          ) : null}
+
+          <section aria-labelledby="actions-heading" className="flex flex-col gap-4">
+            <h2 id="actions-heading" className="text-lg font-semibold">
+              What you can do
+            </h2>
+            {triage ? <TriageForm key={`triage-${d.version}`} {...triage} /> : null}
+            {detail.allowedEvents.length === 0 && !triage ? (
+              <p className="text-ink-700">{noActionsText(d.status)}</p>
+            ) : (
+              detail.allowedEvents.map((event) => (
+                <DeviationEventForm key={`${event.type}-${d.version}`} {...formFor(detail, event, user.name)} />
+              ))
+            )}
+          </section>
+        </div>
+
+        <section aria-labelledby="timeline-heading" className="min-w-0">
+          <h2 id="timeline-heading" className="mb-3 text-lg font-semibold">
+            Timeline
+          </h2>
+          <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} />
+        </section>
+      </div>
+    </>
+  );
+}
+
+async function triageProps(detail: DeviationDetailDto) {
+  const [scales, investigators, dueSettings, timeZone] = await Promise.all([
+    getCurrentRiskScales(),
+    listActiveInvestigators(),
+    getDueDaySettings(),
+    getSiteTimeZone(),
+  ]);
+  if (!scales) return null;
+  const d = detail.deviation;
+  // The classification clock runs from the day the deviation was reported, in the site's time zone.
+  const openedOn = todayIn(timeZone, new Date(d.reportedAt ?? d.occurredAt));
+  const dueDays = dueDaysOf(dueSettings);
+  const dueDates = Object.fromEntries(classifications.map((c) => [c, dueDateFor(openedOn, c, dueDays)])) as Record<(typeof classifications)[number], string>;
+  const dueHints = Object.fromEntries(
+    classifications.map((c) => [
+      c,
+      `${dueDays[c]} days after reporting for ${classificationLabels[c].toLowerCase()} (${dueSettings[c].source === 'setting' ? 'site setting' : 'default'})`,
+    ]),
+  ) as Record<(typeof classifications)[number], string>;
+  return {
+    action: submitTriage,
+    deviationId: d.id,
+    version: d.version,
+    scales: scales.scales,
+    scaleVersion: scales.version,
+    defaultClassification: detail.defect?.defaultClassification ?? 'major',
+    catalogueSeverity: detail.defect?.defaultSeverity ?? null,
+    caution: detail.defect?.caution ?? null,
+    initial: {
+      ...(d.severity !== null ? { severity: d.severity } : {}),
+      ...(d.occurrence !== null ? { occurrence: d.occurrence } : {}),
+      ...(d.detection !== null ? { detection: d.detection } : {}),
+    },
+    investigators,
+    investigatorId: d.investigatorId,
+    dueDates,
+    dueOn: dateOnly(d.dueAt),
+    dueHints,
+  };
+}
