@@ -95,8 +95,12 @@ export function RaiseForm(props: RaiseFormProps) {
     const saved = window.localStorage.getItem(storageKey(draft));
     if (saved) {
       try {
-        setForm({ ...emptyState(), ...(JSON.parse(saved) as Partial<RaiseFormState>) });
-        setRestored(true);
+        const kept = JSON.parse(saved) as Partial<RaiseFormState>;
+        // An untouched form is saved too (the effect below runs on mount): only announce real work put back.
+        if (kept.id || kept.lot || kept.defectId || kept.title || kept.whatHappened) {
+          setForm({ ...emptyState(), ...kept });
+          setRestored(true);
+        }
       } catch {
         window.localStorage.removeItem(storageKey(draft));
       }
@@ -120,9 +124,15 @@ export function RaiseForm(props: RaiseFormProps) {
     };
   }, [batchId, props]);
 
-  const set = <K extends keyof RaiseFormState>(key: K, value: RaiseFormState[K]) => setForm((f) => ({ ...f, [key]: value }));
+  const clearError = (...keys: string[]) =>
+    setErrors((e) => (keys.some((k) => k in e) ? Object.fromEntries(Object.entries(e).filter(([k]) => !keys.includes(k))) : e));
+  const set = <K extends keyof RaiseFormState>(key: K, value: RaiseFormState[K]) => {
+    setForm((f) => ({ ...f, [key]: value }));
+    clearError(key);
+  };
 
   function chooseBatch(b: RaiseBatchOption | null, lot: string) {
+    if (b) clearError('lot', 'batchId');
     setForm((f) => ({
       ...f,
       lot,
@@ -215,6 +225,7 @@ export function RaiseForm(props: RaiseFormProps) {
     setBusy(true);
     setErrors({});
     setMessage(null);
+    setRestored(false);
     try {
       const saved = await save();
       if (saved) {
