@@ -1,33 +1,45 @@
 import type { Metadata } from 'next';
 import Link from 'next/link';
-import { PlannedWork } from '@/components/ui/planned-work';
+import { DeviationTable } from '@/components/deviations/deviation-table';
+import { deviationListSearch } from '@/components/deviations/list-query';
+import { buttonClasses } from '@/components/ui/button';
+import { PageHeader } from '@/components/ui/page-header';
 import { can } from '@/lib/auth/permissions';
 import { requirePageUser } from '@/lib/auth/session';
+import { listDeviationListOptions } from '@/lib/deviations/list-options';
+import { listDeviations } from '@/lib/deviations/queries';
+import { deviationListDefaults, parseDeviationListQuery } from '@/lib/validation/deviation-list';
 
 export const metadata: Metadata = { title: 'Deviations' };
 
-export default async function DeviationsPage() {
-  const user = await requirePageUser('deviation.read', { returnTo: '/deviations' });
+export default async function DeviationsPage({ searchParams }: PageProps<'/deviations'>) {
+  const query = parseDeviationListQuery(await searchParams);
+  const search = deviationListSearch(query, deviationListDefaults);
+  const user = await requirePageUser('deviation.read', { returnTo: search ? `/deviations?${search}` : '/deviations' });
+  const [firstPage, options] = await Promise.all([listDeviations(query, user), listDeviationListOptions(user)]);
+
   return (
     <>
-      <PlannedWork
+      <PageHeader
         title="Deviations"
-        summary="Departures from the approved procedure on the filling lines, from the first report to closure."
-        coming={[
-          'Raising a deviation from the line in under a minute: batch, machine, filling ring, capsule defect, count, photos and the action taken at once.',
-          'Containment by the supervisor: line stopped, batches put on hold.',
-          'Triage by QA: classification, risk score and due date; minor deviations can close here with a justification.',
-          'Investigation to a root cause, with the impact on other batches.',
-          'Approval with an electronic signature, and a disposition for every batch put on hold.',
-        ]}
+        description="Departures from the approved procedure on the filling lines, from the first report to closure. Newest first unless you sort otherwise."
+        actions={
+          <>
+            {can(user, 'risk.score') ? (
+              <Link href="/deviations/risk" className="inline-flex min-h-11 items-center font-semibold underline underline-offset-4">
+                Risk scoring
+              </Link>
+            ) : null}
+            {can(user, 'deviation.raise') ? (
+              <Link href="/deviations/new" className={buttonClasses('primary')}>
+                Raise a deviation
+              </Link>
+            ) : null}
+          </>
+        }
       />
-      {can(user, 'risk.score') ? (
-        <p className="mt-6 max-w-3xl">
-          <Link href="/deviations/risk" className="inline-flex min-h-11 items-center font-semibold underline underline-offset-4">
-            Risk scoring: score a capsule defect for severity, occurrence and detection →
-          </Link>
-        </p>
-      ) : null}
+      {/* A new URL from outside the list (a nav link, a bookmark) starts the table afresh. */}
+      <DeviationTable key={search} initialQuery={query} initialPage={firstPage} defaults={deviationListDefaults} options={options} />
     </>
   );
 }
