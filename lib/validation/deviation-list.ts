@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { classifications } from '../../db/schema/master-data';
+import { classifications } from '../risk/classify';
 import { deviationStates } from '../../workflows/states';
 import { parseInput } from './parse';
 
