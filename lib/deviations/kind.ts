@@ -141,10 +141,15 @@ export const deviationAuditFields = [
 ] as const satisfies readonly (keyof DeviationRow)[];
 
 /** What a signature on a deviation vouches for: the GMP content, never volatile columns. */
+/*
+ * What a deviation signature vouches for: the facts, the assessment and the investigation. The
+ * lifecycle state is left out on purpose: a later step (approval after "investigation complete")
+ * moves the state without changing what was signed, and must not make the earlier signature read
+ * as "record changed after signing" (21 CFR 11.70 links a signature to the content it signed).
+ */
 export function deviationSignedContent(row: DeviationRow): Record<string, unknown> {
   return {
     number: row.number,
-    status: row.status,
     title: row.title,
     whatHappened: row.whatHappened,
     immediateActions: row.immediateActions,
