@@ -205,7 +205,7 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
       ) : null}
 
       <div className="grid grid-cols-1 gap-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
-        <div className="flex min-w-0 flex-col gap-6">
+        <div className="flex min-w-0 flex-col gap-6 xl:col-start-1 xl:row-start-1">
           <section aria-labelledby="what-heading" className="rounded-lg border border-ink-200 bg-white p-5">
             <h2 id="what-heading" className="text-lg font-semibold">
               What happened
@@ -317,28 +317,37 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
             </section>
           ) : null}
 
-          <section aria-labelledby="actions-heading" className="flex flex-col gap-4">
-            <h2 id="actions-heading" className="text-lg font-semibold">
-              What you can do
-            </h2>
-            {triage ? <TriageForm key={`triage-${d.version}`} {...triage} /> : null}
-            {detail.allowedEvents.length === 0 && !triage ? (
-              <p className="text-ink-700">{noActionsText(d.status)}</p>
-            ) : (
-              detail.allowedEvents.map((event) => (
-                <DeviationEventForm key={`${event.type}-${d.version}`} {...formFor(detail, event, user.name)} />
-              ))
-            )}
-          </section>
         </div>
 
-        <section aria-labelledby="timeline-heading" className="min-w-0">
+        <section aria-labelledby="actions-heading" className="flex min-w-0 flex-col gap-4 xl:col-span-2 xl:row-start-2">
+          <h2 id="actions-heading" className="text-lg font-semibold">
+            What you can do
+          </h2>
+          {triage ? <TriageForm key={`triage-${d.version}`} {...triage} /> : null}
+          {detail.allowedEvents.length === 0 && !triage ? (
+            <p className="text-ink-700">{noActionsText(d.status)}</p>
+          ) : (
+            <div className="grid grid-cols-1 items-start gap-4 lg:grid-cols-2">
+              {detail.allowedEvents.map((event) => (
+                <DeviationEventForm key={`${event.type}-${d.version}`} {...formFor(detail, event, user.name)} />
+              ))}
+            </div>
+          )}
+        </section>
+
+        {/* Reading order is record, actions, timeline; on wide screens the timeline sits beside the record and scrolls on its own. */}
+        <section
+          aria-labelledby="timeline-heading"
+          tabIndex={0}
+          className="min-w-0 xl:col-start-2 xl:row-start-1 xl:max-h-[48rem] xl:overflow-y-auto xl:pr-2"
+        >
           <h2 id="timeline-heading" className="mb-3 text-lg font-semibold">
             Timeline
           </h2>
           <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} />
         </section>
       </div>
+
     </>
   );
 }
