@@ -11,13 +11,13 @@
  * - Table 1 (code letters): every lot-size row at all seven levels checked against two published
  *   reproductions of MIL-STD-105E Table I; the S-2 and S-3 columns against a third.
  * - Table 2-A: rows A–Q at AQL 0.65 … 15 checked cell by cell, arrows included, against a
- *   transcription of MIL-STD-105E Table II-A. That transcription prints ↑ at row A, AQL 10 (an
+ *   published copy of MIL-STD-105E Table II-A. That published copy prints ↑ at row A, AQL 10 (an
  *   arrow with no plan above it), and so does this table. The plans of every row, in order, were
  *   checked against a legible copy of MIL-STD-105E Table II-A whose arrows did not survive: row A
  *   runs 0/1 … 30/31, rows B–E 0/1 … 44/45, rows F–Q 0/1 … 21/22, row R 1/2 … 21/22. Where those
  *   plans and the arrows sit outside AQL 0.65 … 15 follows the table's diagonals and is from memory.
  * - Table 2-B: rows A–L at AQL 0.65 … 15 checked cell by cell, arrows included, against a
- *   transcription of MIL-STD-105E Table II-B. Row A at AQL 10 is ↓ there (corrected here; it was
+ *   published copy of MIL-STD-105E Table II-B. Row A at AQL 10 is ↓ there (corrected here; it was
  *   0/1), which sends code letter A on to D, n 8, 1/2. Rows M–R, the AQLs outside 0.65 … 15 and the
  *   plans 27/28 and 41/42 are from memory. The printed table has an extra code letter S (3150)
  *   below R; it could not be checked against any copy of the standard and is not encoded, so a

@@ -11,10 +11,10 @@ import {
 } from '@/lib/sampling/plan';
 
 /*
- * Sources named per check. "MIL-STD-105E II-A/II-B transcription" means the cell was compared with
- * a published transcription of the public-domain MIL-STD-105E (10 May 1989) tables, which carry the
+ * Sources named per check. "MIL-STD-105E II-A/II-B published copy" means the cell was compared with
+ * a published copy of the public-domain MIL-STD-105E (10 May 1989) tables, which carry the
  * same plans as ISO 2859-1:1999 Tables 2-A/2-B and ANSI/ASQ Z1.4-2003 Tables II-A/II-B. Those
- * transcriptions cover rows A–Q (II-A) and A–L (II-B) at AQL 0.65 … 15 and give Re; Ac is Re − 1,
+ * published copies cover rows A–Q (II-A) and A–L (II-B) at AQL 0.65 … 15 and give Re; Ac is Re − 1,
  * as in every single plan of II-A and II-B. "From memory" marks values that were not compared
  * with any printed table; "derived" marks the reduced table, built by rule (see master-tables.ts).
  */
@@ -79,7 +79,7 @@ describe('sample size code letters (MIL-STD-105E Table I; same letters as ISO 28
 
 describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   it('lot 2000, level II, AQL 0.65: K, n 125, Ac 2 Re 3', () => {
-    // MIL-STD-105E II-A transcription; the same worked example appears in Montgomery,
+    // MIL-STD-105E II-A published copy; the same worked example appears in Montgomery,
     // Introduction to Statistical Quality Control (from memory for the book's page).
     expect(plan({ lotSize: 2000, level: 'II', aql: '0.65', severity: 'normal' })).toMatchObject({
       lookedUpLetter: 'K',
@@ -94,7 +94,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it.each<[number, InspectionLevel, Aql, string, number, number, number]>([
-    // MIL-STD-105E II-A transcription
+    // MIL-STD-105E II-A published copy
     [5000, 'II', '2.5', 'L', 200, 10, 11],
     [800, 'II', '4.0', 'J', 80, 7, 8],
     [100, 'II', '6.5', 'F', 20, 3, 4],
@@ -112,7 +112,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('follows a down arrow to the next plan and takes its sample size (G at 1.0 → H, n 50, 1/2)', () => {
-    // MIL-STD-105E II-A transcription: G at 1.0 is ↓, H at 1.0 is 1/2.
+    // MIL-STD-105E II-A published copy: G at 1.0 is ↓, H at 1.0 is 1/2.
     const p = plan({ lotSize: 200, level: 'II', aql: '1.0', severity: 'normal' });
     expect(p).toMatchObject({ lookedUpLetter: 'G', letter: 'H', sampleSize: 50, acceptance: 1, rejection: 2, arrow: 'down' });
     expect(p.notes[0]).toMatch(/arrow down.*code letter H, sample size 50/);
@@ -120,14 +120,14 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('follows an up arrow (G at 0.65 → F, n 20, 0/1)', () => {
-    // MIL-STD-105E II-A transcription: G at 0.65 is ↑, F at 0.65 is 0/1.
+    // MIL-STD-105E II-A published copy: G at 0.65 is ↑, F at 0.65 is 0/1.
     const p = plan({ lotSize: 200, level: 'II', aql: '0.65', severity: 'normal' });
     expect(p).toMatchObject({ lookedUpLetter: 'G', letter: 'F', sampleSize: 20, acceptance: 0, rejection: 1, arrow: 'up' });
     expect(p.notes[0]).toMatch(/arrow up.*first plan above/);
   });
 
   it('follows an up arrow in the lower right (Q at 1.5 → P, n 800, 21/22)', () => {
-    // MIL-STD-105E II-A transcription
+    // MIL-STD-105E II-A published copy
     expect(plan({ lotSize: 600000, level: 'II', aql: '1.5', severity: 'normal' })).toMatchObject({
       lookedUpLetter: 'Q',
       letter: 'P',
@@ -138,7 +138,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('follows a long down arrow and inspects the whole lot when the sample is not smaller than it', () => {
-    // B at 0.65 ↓ … F at 0.65 = 0/1, n 20 (MIL-STD-105E II-A transcription); n ≥ lot → 100 %
+    // B at 0.65 ↓ … F at 0.65 = 0/1, n 20 (MIL-STD-105E II-A published copy); n ≥ lot → 100 %
     // inspection (ISO 2859-1:1999 Table 2-A footnote; Z1.4-2003 Table II-A footnote).
     const p = plan({ lotSize: 10, level: 'II', aql: '0.65', severity: 'normal' });
     expect(p).toMatchObject({ lookedUpLetter: 'B', letter: 'F', tableSampleSize: 20, sampleSize: 10, hundredPercent: true });
@@ -149,12 +149,12 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   it('100 % inspection also when the sample size equals the lot exactly', () => {
     // Z1.4-2003 Table II-A footnote: "equals, or exceeds"
     const p = plan({ lotSize: 13, level: 'S-4', aql: '1.0', severity: 'normal' });
-    // lot 13 → S-4 A; A at 1.0 ↓ … E at 1.0 = 0/1, n 13 (MIL-STD-105E II-A transcription)
+    // lot 13 → S-4 A; A at 1.0 ↓ … E at 1.0 = 0/1, n 13 (MIL-STD-105E II-A published copy)
     expect(p).toMatchObject({ letter: 'E', tableSampleSize: 13, sampleSize: 13, hundredPercent: true });
   });
 
   it('special level S-1, large lot (D at 2.5 ↑ → C, n 5, 0/1)', () => {
-    // MIL-STD-105E Table I: lot 100 000 at S-1 is D; II-A transcription: D at 2.5 is ↑, C at 2.5 is 0/1
+    // MIL-STD-105E Table I: lot 100 000 at S-1 is D; II-A published copy: D at 2.5 is ↑, C at 2.5 is 0/1
     expect(plan({ lotSize: 100000, level: 'S-1', aql: '2.5', severity: 'normal' })).toMatchObject({
       lookedUpLetter: 'D',
       letter: 'C',
@@ -165,7 +165,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('nonconformities per 100 items: A at 1000 is 30/31, C at 650 is 44/45, C at 1000 ↑ → B 44/45', () => {
-    // a second MIL-STD-105E II-A transcription: rows A–E carry 30/31 and 44/45, row A ends at 30/31
+    // a second MIL-STD-105E II-A published copy: rows A–E carry 30/31 and 44/45, row A ends at 30/31
     expect(plan({ lotSize: 5, level: 'II', aql: '1000', severity: 'normal' })).toMatchObject({ acceptance: 30, rejection: 31 });
     expect(plan({ lotSize: 20, level: 'II', aql: '650', severity: 'normal' })).toMatchObject({ letter: 'C', acceptance: 44, rejection: 45 });
     expect(plan({ lotSize: 20, level: 'II', aql: '1000', severity: 'normal' })).toMatchObject({
@@ -188,7 +188,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
   });
 
   it('says there is no plan when the arrow points off the table (A at 10 is ↑ in the top row)', () => {
-    // MIL-STD-105E II-A transcription shows ↑ at A, AQL 10; nothing is above row A.
+    // MIL-STD-105E II-A published copy shows ↑ at A, AQL 10; nothing is above row A.
     const result = findSamplingPlan({ lotSize: 5, level: 'II', aql: '10', severity: 'normal' });
     expect(result.ok).toBe(false);
     if (!result.ok) {
@@ -200,7 +200,7 @@ describe('normal inspection (ISO 2859-1:1999 Table 2-A)', () => {
 
 describe('tightened inspection (ISO 2859-1:1999 Table 2-B)', () => {
   it.each<[number, Aql, string, string, number, number, number, 'up' | 'down' | null]>([
-    // lot, AQL, looked-up letter, plan letter, n, Ac, Re, arrow — MIL-STD-105E II-B transcription
+    // lot, AQL, looked-up letter, plan letter, n, Ac, Re, arrow — MIL-STD-105E II-B published copy
     [2000, '0.65', 'K', 'K', 125, 1, 2, null],
     [5000, '6.5', 'L', 'L', 200, 18, 19, null],
     [3000, '15', 'K', 'J', 80, 18, 19, 'up'],
@@ -262,7 +262,7 @@ describe('reduced inspection (derived: ISO 2859-1:1999 removes the gap, Re = Ac 
   });
 });
 
-describe('cells checked against MIL-STD-105E transcriptions, arrows included', () => {
+describe('cells checked against MIL-STD-105E published copies, arrows included', () => {
   const down = { kind: 'down' };
   const up = { kind: 'up' };
   const plan01 = (ac: number) => ({ kind: 'plan', acceptance: ac, rejection: ac + 1 });
@@ -298,7 +298,7 @@ describe('cells checked against MIL-STD-105E transcriptions, arrows included', (
   });
 
   it('tightened, code letter A at AQL 10 follows the arrow down to D (n 8, Ac 1 Re 2; a lot of 5 is inspected whole)', () => {
-    // MIL-STD-105E Table II-B transcription: A, B and C at 10 are one down arrow ending at D's 1/2.
+    // MIL-STD-105E Table II-B published copy: A, B and C at 10 are one down arrow ending at D's 1/2.
     expect(plan({ lotSize: 5, level: 'II', aql: '10', severity: 'tightened' })).toMatchObject({
       lookedUpLetter: 'A',
       letter: 'D',
