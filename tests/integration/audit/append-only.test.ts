@@ -36,8 +36,11 @@ describe('append-only records for the application user', () => {
       .select({ id: auditEntries.id, reason: auditEntries.reason })
       .from(auditEntries)
       .where(and(eq(auditEntries.recordType, 'filling_ring'), eq(auditEntries.recordId, ring.id)));
-    const [signature] = await db.select().from(signatures).where(eq(signatures.recordId, ring.id));
-    const [history] = await db.select().from(stateHistory).where(eq(stateHistory.recordId, ring.id));
+    const [signature] = await db.select().from(signatures).where(and(eq(signatures.recordType, 'filling_ring'), eq(signatures.recordId, ring.id)));
+    const [history] = await db
+      .select()
+      .from(stateHistory)
+      .where(and(eq(stateHistory.recordType, 'filling_ring'), eq(stateHistory.recordId, ring.id)));
     expect(entry && signature && history).toBeTruthy();
 
     await expectDenied(sql`UPDATE audit_entries SET reason = 'edited afterwards' WHERE id = ${entry!.id}`);

@@ -80,7 +80,7 @@ describe('electronic signatures', () => {
     expect(err).toBeInstanceOf(ValidationError);
     expect((err as ValidationError).fieldErrors.password?.[0]).toMatch(/password is not correct/i);
     expect(await failedSignins(approver.id)).toBe(1);
-    expect(await db.select().from(signatures).where(eq(signatures.recordId, ring.id))).toHaveLength(0);
+    expect(await db.select().from(signatures).where(and(eq(signatures.recordType, 'filling_ring'), eq(signatures.recordId, ring.id)))).toHaveLength(0);
     const after = await getRing(ring.id);
     expect(after).toMatchObject({ status: 'quarantined', version: ring.version, retiredAt: null });
     const failures = await db
