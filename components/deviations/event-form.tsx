@@ -2,6 +2,7 @@
 
 import { useActionState, useId } from 'react';
 import { Notice } from '@/components/ui/notice';
+import { SignatureBlock } from '@/components/ui/signature-block';
 import { SubmitButton } from '@/components/ui/submit-button';
 import { type DeviationFormState, idleDeviationFormState } from './detail-form-state';
 
@@ -42,7 +43,6 @@ export function DeviationEventForm(props: DeviationEventFormProps) {
   const reasonErrors = state.fieldErrors.reason;
   const passwordErrors = state.fieldErrors.password;
   const reasonInvalid = Boolean(reasonErrors?.length);
-  const passwordInvalid = Boolean(passwordErrors?.length);
 
   return (
     <section aria-labelledby={headingId} className="rounded-lg border border-ink-200 bg-white p-5">
@@ -81,27 +81,13 @@ export function DeviationEventForm(props: DeviationEventFormProps) {
           </div>
         ) : null}
         {props.signature ? (
-          <fieldset className="flex flex-col gap-2 rounded-md border border-brass-600 bg-brass-50 p-4">
-            <legend className="px-1 font-semibold">Electronic signature: {props.signature.meaningLabel}</legend>
-            <p className="text-ink-800">
-              Signing as <strong>{props.signature.signerName}</strong>. {props.signature.statement} Your password is
-              your signature; it is the legally binding equivalent of your handwritten one.
-            </p>
-            <label htmlFor={`${uid}-password`} className="font-semibold text-ink-900">
-              Password
-            </label>
-            <input
-              id={`${uid}-password`}
-              name="password"
-              type="password"
-              autoComplete="current-password"
-              required
-              aria-invalid={passwordInvalid ? true : undefined}
-              aria-describedby={passwordInvalid ? `${uid}-password-error` : undefined}
-              className="block min-h-11 w-full max-w-sm rounded-md border border-ink-400 bg-white px-3 py-2 text-base aria-[invalid=true]:border-2 aria-[invalid=true]:border-danger-700"
-            />
-            <FieldError id={`${uid}-password-error`} errors={passwordErrors} />
-          </fieldset>
+          <SignatureBlock
+            id={uid}
+            meaningLabel={props.signature.meaningLabel}
+            statement={props.signature.statement}
+            signerName={props.signature.signerName}
+            errors={passwordErrors}
+          />
         ) : null}
         {/* Errors about fields this form does not show (e.g. a batch without disposition) still reach the person. */}
         {Object.entries(state.fieldErrors)

@@ -3,6 +3,7 @@
 import { useActionState, useId } from 'react';
 import { SelectField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/notice';
+import { SignatureBlock } from '@/components/ui/signature-block';
 import { SubmitButton } from '@/components/ui/submit-button';
 import { idleRingFormState, type RingFormState } from './ring-form-state';
 
@@ -87,7 +88,6 @@ export function RingEventForm(props: RingEventFormProps) {
   const uid = useId();
   const headingId = `${uid}-heading`;
   const passwordErrors = state.fieldErrors.password;
-  const passwordInvalid = Boolean(passwordErrors && passwordErrors.length > 0);
 
   return (
     <section aria-labelledby={headingId} className="rounded-lg border border-ink-200 bg-white p-5">
@@ -126,32 +126,13 @@ export function RingEventForm(props: RingEventFormProps) {
           defaultValue={state.values.reason ?? ''}
         />
         {props.signature ? (
-          <fieldset className="flex flex-col gap-2 rounded-md border border-brass-600 bg-brass-50 p-4">
-            <legend className="px-1 font-semibold">Electronic signature: {props.signature.meaningLabel}</legend>
-            <p className="text-ink-800">
-              Signing as <strong>{props.signature.signerName}</strong>. {props.signature.statement} Your password is
-              your signature; it is the legally binding equivalent of your handwritten one.
-            </p>
-            <label htmlFor={`${uid}-password`} className="font-semibold text-ink-900">
-              Password
-            </label>
-            <input
-              id={`${uid}-password`}
-              name="password"
-              type="password"
-              autoComplete="current-password"
-              required
-              aria-invalid={passwordInvalid ? true : undefined}
-              aria-describedby={passwordInvalid ? `${uid}-password-error` : undefined}
-              className="block min-h-11 w-full max-w-sm rounded-md border border-ink-400 bg-white px-3 py-2 text-base aria-[invalid=true]:border-2 aria-[invalid=true]:border-danger-700"
-            />
-            {passwordInvalid ? (
-              <p id={`${uid}-password-error`} className="flex items-start gap-1 text-sm font-semibold text-danger-700">
-                <span aria-hidden="true">✕</span>
-                <span>{passwordErrors!.join(' ')}</span>
-              </p>
-            ) : null}
-          </fieldset>
+          <SignatureBlock
+            id={uid}
+            meaningLabel={props.signature.meaningLabel}
+            statement={props.signature.statement}
+            signerName={props.signature.signerName}
+            errors={passwordErrors}
+          />
         ) : null}
         <div>
           <SubmitButton pendingLabel={props.pendingLabel} variant={props.danger ? 'danger' : 'primary'}>
