@@ -51,6 +51,10 @@ export const deviations = mysqlTable(
     rpn: smallint('rpn'),
     riskScaleVersion: int('risk_scale_version'),
     investigationReport: text('investigation_report'),
+    /** JSON array of up to five why/answer strings. */
+    fiveWhys: text('five_whys'),
+    /** JSON: the probable causes marked on the six-branch cause-and-effect view, with notes. */
+    causeAnalysis: text('cause_analysis'),
     rootCauseCategory: varchar('root_cause_category', { length: 32 }),
     rootCause: text('root_cause'),
     productImpact: text('product_impact'),
