@@ -41,6 +41,9 @@ export class ValidationError extends DomainError {
   }
 }
 
+/** A service the command needs (object storage) did not answer; nothing was saved. Routes answer 503. */
+export class ServiceUnavailableError extends DomainError {}
+
 export function isDomainError(err: unknown): err is DomainError {
   return err instanceof DomainError;
 }

@@ -16,6 +16,7 @@ export const permissions = [
   'deviation.investigate',
   'deviation.approve',
   'deviation.cancel',
+  'attachment.add',
   'capa.read',
   'capa.create',
   'capa.plan',
@@ -56,6 +57,8 @@ export const permissionTable: Record<Permission, Partial<Record<Role, Scope>>> =
   'deviation.investigate': { qa_investigator: A },
   'deviation.approve': { qa_approver: A },
   'deviation.cancel': { qa_investigator: A, qa_approver: A },
+  // Evidence on a record: its author (own) and QA (any); lib/attachments/record-access.ts adds the state rules.
+  'attachment.add': { operator: O, supervisor: O, qa_investigator: A, qa_approver: A },
   'capa.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
   'capa.create': { qa_investigator: A, qa_approver: A },
   'capa.plan': { qa_investigator: A },

@@ -26,6 +26,7 @@ deviation.triage          -    -    any  -    -
 deviation.investigate     -    -    any  -    -
 deviation.approve         -    -    -    any  -
 deviation.cancel          -    -    any  any  -
+attachment.add            own  own  any  any  -
 capa.read                 any  any  any  any  any
 capa.create               -    -    any  any  -
 capa.plan                 -    -    any  -    -
