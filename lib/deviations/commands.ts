@@ -8,7 +8,9 @@ import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError }
 import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
 import { allocateNumber } from '../records/numbers';
 import { type WriteOutcome, insertRecord, transitionRecord } from '../records/write-path';
+import { isRichTextEmpty } from '../rich-text/sanitize';
 import { parseInput } from '../validation/parse';
+import { missingForApproval } from './investigation-schema';
 import { type DeviationRow, deviationAuditFields, deviationKind } from './kind';
 import {
   type CreateDraftInput,
@@ -252,6 +254,18 @@ export async function submitForApproval(actor: RecordActor, raw: SignedInput): P
     event: 'submit_for_approval',
     actor,
     password: input.password,
+    changes: (row) => {
+      // 21 CFR 211.192: the written record of the investigation includes its conclusions and follow-up;
+      // the signature "investigation complete" is refused while any of them is missing.
+      const missing = missingForApproval(row, isRichTextEmpty);
+      if (Object.keys(missing).length > 0) {
+        throw new ValidationError(
+          `Complete the investigation before signing it: ${Object.values(missing).flat().join(' ')}`,
+          missing,
+        );
+      }
+      return {};
+    },
   });
 }
 

@@ -43,6 +43,10 @@ export interface DeviationDto {
   detection: number | null;
   rpn: number | null;
   investigationReport: string | null;
+  /** JSON text: up to five why/because steps (lib/deviations/investigation-schema.ts). */
+  fiveWhys: string | null;
+  /** JSON text: the marks on the six-branch cause-and-effect view. */
+  causeAnalysis: string | null;
   rootCauseCategory: string | null;
   rootCause: string | null;
   productImpact: string | null;
@@ -87,6 +91,8 @@ export function toDeviationDto(row: DeviationRow): DeviationDto {
     detection: row.detection,
     rpn: row.rpn,
     investigationReport: row.investigationReport,
+    fiveWhys: row.fiveWhys,
+    causeAnalysis: row.causeAnalysis,
     rootCauseCategory: row.rootCauseCategory,
     rootCause: row.rootCause,
     productImpact: row.productImpact,
@@ -126,6 +132,8 @@ export const deviationAuditFields = [
   'detection',
   'rpn',
   'investigationReport',
+  'fiveWhys',
+  'causeAnalysis',
   'rootCauseCategory',
   'rootCause',
   'productImpact',
@@ -165,6 +173,8 @@ export function deviationSignedContent(row: DeviationRow): Record<string, unknow
     detection: row.detection,
     rpn: row.rpn,
     investigationReport: row.investigationReport,
+    fiveWhys: row.fiveWhys,
+    causeAnalysis: row.causeAnalysis,
     rootCauseCategory: row.rootCauseCategory,
     rootCause: row.rootCause,
     productImpact: row.productImpact,

@@ -98,7 +98,12 @@ export type RichTextResult = { ok: true; html: string; empty: boolean } | { ok: 
 export function cleanRichTextForSaving(html: string): RichTextResult {
   const clean = sanitizeRichText(html);
   if (clean.length > richTextMaxLength) return { ok: false, message: richTextTooLongMessage };
-  return { ok: true, html: clean, empty: richTextToPlainText(clean) === '' && !/<(?:table|hr)\b/.test(clean) };
+  return { ok: true, html: clean, empty: isRichTextEmpty(clean) };
+}
+
+/** Nothing a reader would see: no text, no table, no rule (an editor left empty writes "<p></p>"). */
+export function isRichTextEmpty(html: string): boolean {
+  return richTextToPlainText(html) === '' && !/<(?:table|hr)\b/i.test(html);
 }
 
 const entities: Record<string, string> = { amp: '&', lt: '<', gt: '>', quot: '"', '#39': "'", apos: "'", nbsp: ' ' };
