@@ -1,19 +1,16 @@
 import { formatUtc } from '@/components/ui/format';
 import { StatusBadge } from '@/components/ui/status-badge';
 import { classificationLabels, deviationEventLabels, deviationStateLabels, dispositionLabels } from '@/lib/deviations/labels';
+import { type TimelineComment, type TimelineEntry, buildTimeline, isMeaningfulChange, userIdFields } from '@/lib/records/timeline';
 import type { AuditEntryDto, HistoryEntryDto } from '@/lib/records/trail';
 import type { SignatureDto } from '@/lib/signatures';
 
 /*
- * The deviation's story in one list, newest first: each transition with its comment, each signature
- * as 21 CFR 11.50(a) asks it to read (printed name, date and time, meaning) with whether the record
- * still holds what was signed (11.70), and each audit entry with old → new values (11.10(e)).
+ * The deviation's story in one list, newest first: each transition once, with its comment, its
+ * field changes and its signature as 21 CFR 11.50(a) asks it to read (printed name, date and time,
+ * meaning) and whether the record still holds what was signed (11.70); every other audit entry with
+ * old → new values (11.10(e)); and the comments. lib/records/timeline.ts does the merging.
  */
-
-type Item =
-  | { kind: 'history'; at: string; key: string; entry: HistoryEntryDto }
-  | { kind: 'signature'; at: string; key: string; entry: SignatureDto }
-  | { kind: 'audit'; at: string; key: string; entry: AuditEntryDto };
 
 const fieldLabels: Record<string, string> = {
   status: 'Status',
@@ -36,16 +33,39 @@ const fieldLabels: Record<string, string> = {
   cancelReason: 'Cancellation reason',
   heldBatchIds: 'Held batches',
   signature: 'Signature',
+  investigationReport: 'Investigation report',
+  rootCauseCategory: 'Root-cause category',
+  rootCause: 'Root cause',
+  productImpact: 'Product impact',
+  capaRequired: 'CAPA needed',
+  fiveWhys: '5-whys',
+  causeAnalysis: 'Cause-and-effect',
+  affectedCount: 'Capsules affected',
+  sampleDescription: 'Sample',
+  lineStopped: 'Line stopped',
+  capsulesSegregated: 'Capsules segregated',
+  defectId: 'Defect',
+  productId: 'Product',
+  batchId: 'Batch',
+  machineId: 'Machine',
+  ringId: 'Filling ring',
+  occurredAt: 'Occurred',
 };
 
-function show(field: string, value: unknown): string {
+type Names = Readonly<Record<number, string>>;
+
+function show(field: string, value: unknown, names: Names): string {
   if (value === null || value === undefined || value === '') return '(empty)';
+  if (typeof value === 'number' && (userIdFields as readonly string[]).includes(field)) return names[value] ?? `user #${value}`;
+  if (typeof value === 'boolean') return value ? 'Yes' : 'No';
   if (typeof value === 'string') {
     if (field === 'status') return deviationStateLabels[value as keyof typeof deviationStateLabels] ?? value;
     if (field === 'classification') return classificationLabels[value as keyof typeof classificationLabels] ?? value;
     if (field === 'disposition') return dispositionLabels[value as keyof typeof dispositionLabels] ?? value;
     if (/^\d{4}-\d{2}-\d{2}T/.test(value)) return formatUtc(value, true);
-    return value.length > 160 ? `${value.slice(0, 157)}…` : value;
+    // Rich text reads as its words here; the full saved version stays in the audit trail itself.
+    const text = value.includes('<') ? value.replace(/<[^>]*>/g, ' ').replace(/\s+/g, ' ').trim() : value;
+    return text.length > 160 ? `${text.slice(0, 157)}…` : text;
   }
   if (field === 'signature' && typeof value === 'object') {
     const s = value as { meaning?: string; recordVersion?: number };
@@ -66,16 +86,16 @@ export function DeviationTimeline({
   history,
   signatures,
   audit,
+  comments,
+  userNames = {},
 }: {
   history: readonly HistoryEntryDto[];
   signatures: readonly SignatureDto[];
   audit: readonly AuditEntryDto[] | null;
+  comments?: readonly TimelineComment[];
+  userNames?: Names;
 }) {
-  const items: Item[] = [
-    ...history.map((entry): Item => ({ kind: 'history', at: entry.at, key: `h${entry.id}`, entry })),
-    ...signatures.map((entry): Item => ({ kind: 'signature', at: entry.signedAt, key: `s${entry.id}`, entry })),
-    ...(audit ?? []).map((entry): Item => ({ kind: 'audit', at: entry.at, key: `a${entry.id}`, entry })),
-  ].sort((a, b) => (a.at < b.at ? 1 : a.at > b.at ? -1 : a.key < b.key ? 1 : -1));
+  const items = buildTimeline({ history, signatures, audit, comments });
   if (items.length === 0) return <p className="text-ink-600">Nothing recorded yet.</p>;
 
   return (
@@ -85,20 +105,60 @@ export function DeviationTimeline({
           <span
             aria-hidden="true"
             className={`absolute top-1.5 -left-[27px] h-3 w-3 rounded-full border-2 bg-white ${
-              item.kind === 'signature' ? 'border-brass-600' : item.kind === 'audit' ? 'border-ink-400' : 'border-ink-700'
+              item.kind === 'signature' || (item.kind === 'transition' && item.signatures.length > 0)
+                ? 'border-brass-600'
+                : item.kind === 'audit' || item.kind === 'comment'
+                  ? 'border-ink-400'
+                  : 'border-ink-700'
             }`}
           />
-          <TimelineItem item={item} />
+          <TimelineItem item={item} names={userNames} />
         </li>
       ))}
     </ol>
   );
 }
 
-function TimelineItem({ item }: { item: Item }) {
+function Changes({ entries, names, skipStatus }: { entries: readonly AuditEntryDto[]; names: Names; skipStatus: boolean }) {
+  const lines = entries.flatMap((e) =>
+    e.changes
+      .filter((c) => isMeaningfulChange(c) && !(skipStatus && (c.field === 'status' || c.field === 'signature')))
+      .map((c) => ({ key: `${e.id}-${c.field}`, c })),
+  );
+  if (lines.length === 0) return null;
+  return (
+    <ul className="mt-1 text-sm break-words text-ink-800">
+      {lines.map(({ key, c }) => (
+        <li key={key}>
+          {fieldLabels[c.field] ?? c.field}: {show(c.field, c.from, names)} → {show(c.field, c.to, names)}
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function SignatureLine({ s }: { s: SignatureDto }) {
+  return (
+    <>
+      <p className="font-semibold">
+        Signature: {s.meaningLabel} by {s.printedName}
+        {s.printedTitle ? <span className="font-normal text-ink-600"> ({s.printedTitle})</span> : null}
+      </p>
+      <p className="text-sm text-ink-600">
+        {formatUtc(s.signedAt, true)} · record version {s.recordVersion}
+      </p>
+      <p className="mt-1 flex flex-wrap gap-2">
+        {s.matches ? <StatusBadge tone="ok" label="Matches the record" /> : <StatusBadge tone="warn" label="Record changed after signing" />}
+        {s.intact ? null : <StatusBadge tone="danger" label="Signature entry altered" />}
+      </p>
+    </>
+  );
+}
+
+function TimelineItem({ item, names }: { item: TimelineEntry; names: Names }) {
   switch (item.kind) {
-    case 'history': {
-      const h = item.entry;
+    case 'transition': {
+      const h = item.history;
       return (
         <>
           <p className="font-semibold">
@@ -113,28 +173,24 @@ function TimelineItem({ item }: { item: Item }) {
             {formatUtc(h.at, true)} · {h.userName}
           </p>
           {h.comment ? <p className="mt-1 text-ink-800">{h.comment}</p> : null}
+          <Changes entries={item.audit} names={names} skipStatus />
+          {item.signatures.map((s) => (
+            <div key={s.id} className="mt-2 border-l-2 border-brass-600 pl-3">
+              <SignatureLine s={s} />
+            </div>
+          ))}
         </>
       );
     }
-    case 'signature': {
-      const s = item.entry;
+    case 'signature':
+      return <SignatureLine s={item.signature} />;
+    case 'comment': {
+      const c = item.comment;
       return (
         <>
-          <p className="font-semibold">
-            Signature: {s.meaningLabel} by {s.printedName}
-            {s.printedTitle ? <span className="font-normal text-ink-600"> ({s.printedTitle})</span> : null}
-          </p>
-          <p className="text-sm text-ink-600">
-            {formatUtc(s.signedAt, true)} · record version {s.recordVersion}
-          </p>
-          <p className="mt-1 flex flex-wrap gap-2">
-            {s.matches ? (
-              <StatusBadge tone="ok" label="Matches the record" />
-            ) : (
-              <StatusBadge tone="warn" label="Record changed after signing" />
-            )}
-            {s.intact ? null : <StatusBadge tone="danger" label="Signature entry altered" />}
-          </p>
+          <p className="font-semibold">Comment by {c.userName}</p>
+          <p className="text-sm text-ink-600">{formatUtc(c.at, true)}</p>
+          <p className="mt-1 whitespace-pre-line break-words text-ink-800">{c.body}</p>
         </>
       );
     }
@@ -149,15 +205,7 @@ function TimelineItem({ item }: { item: Item }) {
           <p className="text-sm text-ink-600">
             {formatUtc(e.at, true)} · {e.userName}
           </p>
-          {e.changes.length > 0 ? (
-            <ul className="mt-1 text-sm break-words text-ink-800">
-              {e.changes.map((c) => (
-                <li key={c.field}>
-                  {fieldLabels[c.field] ?? c.field}: {show(c.field, c.from)} → {show(c.field, c.to)}
-                </li>
-              ))}
-            </ul>
-          ) : null}
+          <Changes entries={[e]} names={names} skipStatus={false} />
           {e.reason ? <p className="text-sm text-ink-700">Reason: {e.reason}</p> : null}
         </>
       );

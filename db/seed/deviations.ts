@@ -1,5 +1,5 @@
 import { inArray, sql } from 'drizzle-orm';
-import { diffFields, writeAudit } from '../../lib/audit';
+import { diffFields, writeDemoAuditAt } from '../../lib/audit';
 import { sqlUtc } from '../../lib/audit/hash';
 import { roleLabels } from '../../lib/auth/roles';
 import { defaultDueDays, dueDateFor } from '../../lib/clocks/due-dates';
@@ -1183,6 +1183,8 @@ export async function seedDeviations(tx: Tx, scenario: DemoScenario): Promise<vo
       rpn: c.rpn,
       riskScaleVersion: c.rpn === null ? null : 1,
       investigationReport: c.investigationReport,
+      fiveWhys: null,
+      causeAnalysis: null,
       rootCauseCategory: c.rootCauseCategory,
       rootCause: c.rootCause,
       productImpact: c.productImpact,
@@ -1241,14 +1243,18 @@ export async function seedDeviations(tx: Tx, scenario: DemoScenario): Promise<vo
         });
       }
       const fields = s.event === 'record_triage' ? deviationAuditFields : ['status', ...deviationAuditFields];
-      await writeAudit(tx, {
-        actor: { id: actor.id, name: actor.name },
-        recordType: 'deviation',
-        recordId: id,
-        action: s.event,
-        changes: diffFields(before, after, fields),
-        reason: s.reason,
-      });
+      await writeDemoAuditAt(
+        tx,
+        {
+          actor: { id: actor.id, name: actor.name },
+          recordType: 'deviation',
+          recordId: id,
+          action: s.event,
+          changes: diffFields(before, after, fields),
+          reason: s.reason,
+        },
+        at,
+      );
       if (s.signature) await insertSignature(tx, actor, after, s.signature, s.reason, at);
       before = after;
     }
@@ -1280,13 +1286,17 @@ async function insertSignature(
     .insert(signatures)
     .values({ ...manifest, signatureHash: signatureManifestHash(manifest) })
     .$returningId();
-  await writeAudit(tx, {
-    actor: { id: signer.id, name: signer.name },
-    recordType: 'deviation',
-    recordId: row.id,
-    action: 'signed',
-    changes: [{ field: 'signature', from: null, to: { id: inserted!.id, meaning, recordVersion: row.version, contentHash } }],
-    reason,
-  });
+  await writeDemoAuditAt(
+    tx,
+    {
+      actor: { id: signer.id, name: signer.name },
+      recordType: 'deviation',
+      recordId: row.id,
+      action: 'signed',
+      changes: [{ field: 'signature', from: null, to: { id: inserted!.id, meaning, recordVersion: row.version, contentHash } }],
+      reason,
+    },
+    at,
+  );
 }
 

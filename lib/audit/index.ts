@@ -35,13 +35,26 @@ export interface AuditInput {
   reason?: string | null;
 }
 
-export async function writeAudit(tx: DbOrTx, input: AuditInput): Promise<{ id: number; hash: string }> {
+export function writeAudit(tx: DbOrTx, input: AuditInput): Promise<{ id: number; hash: string }> {
+  return appendAudit(tx, input, new Date());
+}
+
+/**
+ * For the demo scenario only (db/seed): its stories happened over months, and their audit entries
+ * carry the dates of those events so the demo reads like a working site. The application never
+ * calls this; tests/unit/audit/backdating.test.ts keeps it that way.
+ */
+export function writeDemoAuditAt(tx: DbOrTx, input: AuditInput, at: Date): Promise<{ id: number; hash: string }> {
+  return appendAudit(tx, input, at);
+}
+
+async function appendAudit(tx: DbOrTx, input: AuditInput, at: Date): Promise<{ id: number; hash: string }> {
   await tx.insert(auditChainHead).ignore().values({ id: 1, lastEntryId: 0, lastHash: genesisHash });
   const [head] = await tx.select().from(auditChainHead).where(eq(auditChainHead.id, 1)).for('update');
   if (!head) throw new Error('audit chain head missing');
 
   const content = {
-    at: sqlUtc(new Date()),
+    at: sqlUtc(at),
     userId: input.actor.id,
     userName: input.actor.name,
     recordType: input.recordType,

@@ -1,5 +1,5 @@
 import 'server-only';
-import { and, asc, eq } from 'drizzle-orm';
+import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, deviationBatches, deviations, fillingRings, machines, products, users } from '../../db/schema';
@@ -7,6 +7,7 @@ import { can } from '../auth/permissions';
 import { NotFoundError } from '../errors';
 import type { AllowedEvent } from '../records/workflow';
 import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
+import { userIdsInChanges } from '../records/timeline';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';
 import { type SignatureDto, listSignatures } from '../signatures';
 import { type DeviationEventType, deviationEvents } from '../../workflows/deviation';
@@ -67,6 +68,15 @@ export interface DeviationDetailDto {
   signatures: SignatureDto[];
   /** Null for roles without audit.read. */
   audit: AuditEntryDto[] | null;
+  /** Names of the people the audit changes name by id (owner, investigator), keyed by user id. */
+  userNames: Record<number, string>;
+}
+
+/** One query for every user id the audit trail mentions, so the timeline shows names, not numbers. */
+async function userNamesFor(dbOrTx: DbOrTx, ids: number[]): Promise<Record<number, string>> {
+  if (ids.length === 0) return {};
+  const rows = await dbOrTx.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, ids));
+  return Object.fromEntries(rows.map((r) => [r.id, r.name]));
 }
 
 async function userName(dbOrTx: DbOrTx, id: number | null): Promise<string | null> {
@@ -164,6 +174,7 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
     history,
     signatures,
     audit,
+    userNames: await userNamesFor(dbOrTx, userIdsInChanges(audit)),
   };
 }
 

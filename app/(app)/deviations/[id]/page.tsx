@@ -344,7 +344,7 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
           <h2 id="timeline-heading" className="mb-3 text-lg font-semibold">
             Timeline
           </h2>
-          <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} />
+          <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} userNames={detail.userNames} />
         </section>
       </div>
 
