@@ -1,0 +1,37 @@
+import { runRemindersOnce } from './run';
+
+/*
+ * Runs the reminder sweep beside the outbox worker: once at start, then every intervalMs. A sweep
+ * that fails (database away) is logged and tried again at the next tick; sweeps never overlap.
+ */
+
+export interface ReminderLoop {
+  stop(): Promise<void>;
+}
+
+export function startReminderLoop(opts: { intervalMs: number; log?: (line: string) => void }): ReminderLoop {
+  const log = opts.log ?? ((line: string) => console.log(line));
+  let running: Promise<void> | null = null;
+  let stopped = false;
+
+  const sweep = () => {
+    if (running || stopped) return;
+    running = runRemindersOnce()
+      .then((r) => {
+        if (r.queued > 0) log(`reminders: ${r.queued} queued (${r.examined} items due soon or overdue)`);
+      })
+      .catch((err: unknown) => log(`reminders: ${err instanceof Error ? err.message : String(err)}`))
+      .finally(() => {
+        running = null;
+      });
+  };
+  sweep();
+  const timer = setInterval(sweep, opts.intervalMs);
+  return {
+    async stop() {
+      stopped = true;
+      clearInterval(timer);
+      await running;
+    },
+  };
+}
