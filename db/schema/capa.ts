@@ -5,6 +5,8 @@ import { createdAt, id, updatedAt, utc, version } from './columns';
 
 export const capaSources = ['deviation', 'complaint', 'trend'] as const;
 export const capaActionKinds = ['corrective', 'preventive'] as const;
+/** What an action changes: a machine setting, a procedure, training, a ring retirement, a supplier change. */
+export const capaActionCategories = ['machine_setting', 'procedure', 'training', 'ring_retirement', 'supplier_change', 'other'] as const;
 
 export const capas = mysqlTable(
   'capas',
@@ -33,6 +35,18 @@ export const capas = mysqlTable(
     dueAt: utc('due_at'),
     effectivenessDueAt: utc('effectiveness_due_at'),
     closedAt: utc('closed_at'),
+    /**
+     * The plan being worked: 1 at first, one more each time an effectiveness check finds the actions
+     * did not work. Actions of earlier rounds stay on record; the guards look at this round only.
+     */
+    planRound: int('plan_round').notNull().default(1),
+    /** Actions of the current round, and how many of them are not completed (kept in step by lib/capa/commands.ts). */
+    actionsPlanned: int('actions_planned').notNull().default(0),
+    actionsOpen: int('actions_open').notNull().default(0),
+    /** When the last action of the current round was completed: the recurrence count starts here. */
+    actionsCompletedAt: utc('actions_completed_at'),
+    planApprovedAt: utc('plan_approved_at'),
+    effectivenessOpenedAt: utc('effectiveness_opened_at'),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
@@ -54,15 +68,22 @@ export const capaActions = mysqlTable(
       .notNull()
       .references(() => capas.id),
     kind: mysqlEnum('kind', capaActionKinds).notNull(),
-    /** machine_setting, procedure, training, ring_retirement, supplier_change, other. */
+    /** One of capaActionCategories. */
     category: varchar('category', { length: 32 }).notNull(),
+    /** The CAPA's plan round this action belongs to. */
+    round: int('round').notNull().default(1),
     description: text('description').notNull(),
     ownerId: int('owner_id')
       .notNull()
       .references(() => users.id),
     dueAt: utc('due_at').notNull(),
     completedAt: utc('completed_at'),
+    completedBy: int('completed_by').references(() => users.id),
+    /** Evidence of completion: rich text, cleaned on the server (lib/rich-text). */
     evidence: text('evidence'),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
     version: version(),
     createdAt: createdAt(),
     updatedAt: updatedAt(),

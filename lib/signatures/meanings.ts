@@ -12,6 +12,8 @@ export const signatureMeanings = [
   'verified',
   'responsible',
   'investigation_complete',
+  'effective',
+  'not_effective',
 ] as const;
 export type SignatureMeaning = (typeof signatureMeanings)[number];
 
@@ -24,6 +26,8 @@ export const signatureMeaningLabels: Record<SignatureMeaning, string> = {
   verified: 'Verified',
   responsible: 'Responsible',
   investigation_complete: 'Investigation complete',
+  effective: 'Effective',
+  not_effective: 'Not effective',
 };
 
 /** The sentence the signer reads before entering the password. */
@@ -36,6 +40,10 @@ export const signatureMeaningStatements: Record<SignatureMeaning, string> = {
   responsible: 'I take responsibility for this record.',
   investigation_complete:
     'I have completed this investigation; the root cause, product impact and batch recommendations are as recorded.',
+  effective:
+    'I have reviewed the evidence against the effectiveness criteria written in the plan; the actions achieved them.',
+  not_effective:
+    'I have reviewed the evidence against the effectiveness criteria written in the plan; the actions did not achieve them, for the reason I give.',
 };
 
 export function isSignatureMeaning(value: unknown): value is SignatureMeaning {

@@ -32,6 +32,7 @@ capa.create               -    -    any  any  -
 capa.plan                 -    -    any  -    -
 capa.complete_action      own  own  own  own  -
 capa.approve              -    -    -    any  -
+capa.cancel               -    -    any  any  -
 complaint.read            -    any  any  any  any
 complaint.intake          any  any  any  any  -
 complaint.read_personal   -    -    any  any  -

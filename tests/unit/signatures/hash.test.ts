@@ -90,6 +90,8 @@ describe('signature meanings', () => {
       'verified',
       'responsible',
       'investigation_complete',
+      'effective',
+      'not_effective',
     ]);
     for (const m of signatureMeanings) {
       expect(signatureMeaningLabels[m]).toBeTruthy();
