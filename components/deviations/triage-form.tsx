@@ -63,7 +63,6 @@ export function TriageForm(props: TriageFormProps) {
         {state.failed && state.message ? <Notice tone="danger" title={state.message} /> : null}
         <input type="hidden" name="id" value={props.deviationId} />
         <input type="hidden" name="version" value={props.version} />
-        <input type="hidden" name="defaultClassification" value={props.defaultClassification} />
         <RiskScoreWidget
           scales={props.scales}
           scaleVersion={props.scaleVersion}

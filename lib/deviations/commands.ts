@@ -1,13 +1,14 @@
 import 'server-only';
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import { db, type Tx } from '../../db/client';
-import { batches, deviationBatches, deviations, users } from '../../db/schema';
+import { batches, capsuleDefects, deviationBatches, deviations, users } from '../../db/schema';
 import { diffFields, writeAudit } from '../audit';
 import { assertCan, can } from '../auth/permissions';
 import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
 import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
 import { allocateNumber } from '../records/numbers';
 import { type WriteOutcome, insertRecord, transitionRecord } from '../records/write-path';
+import { type Classification, classify } from '../risk/classify';
 import { isRichTextEmpty } from '../rich-text/sanitize';
 import { parseInput } from '../validation/parse';
 import { missingForApproval } from './investigation-schema';
@@ -16,16 +17,16 @@ import {
   type CreateDraftInput,
   type DeviationVersionInput,
   type ReasonInput,
-  type RecordTriageInput,
   type SignedInput,
   type SignedReasonInput,
+  type TriageDecisionInput,
   type UpdateDraftInput,
   createDraftSchema,
   deviationVersionSchema,
   reasonSchema,
-  recordTriageSchema,
   signedReasonSchema,
   signedSchema,
+  triageDecisionSchema,
   updateDraftSchema,
 } from './schemas';
 
@@ -204,11 +205,37 @@ export async function startTriage(actor: RecordActor, raw: DeviationVersionInput
   return transitionRecord(deviationKind, { id: input.id, expectedVersion: input.version, event: 'start_triage', actor });
 }
 
-/** The triage decision: classification with its S, O, D and RPN, the investigator and the due date. */
-export async function recordTriage(actor: RecordActor, raw: RecordTriageInput): Promise<DeviationOutcome> {
-  const input = parseInput(recordTriageSchema, raw);
+/** The class a deviation naming no defect starts from, as the triage form shows it (common practice: assume major). */
+export const classificationWithoutDefect = 'major' satisfies Classification;
+
+/**
+ * The triage decision: classification with its S, O, D and RPN, the investigator and the due date.
+ * The class is checked here against the defect's catalogue class read from the database, never a
+ * value the form sends: a class below the computed one (lib/risk/classify) needs a written
+ * justification, and the computed class stands when none is picked.
+ */
+export async function recordTriage(actor: RecordActor, raw: TriageDecisionInput): Promise<DeviationOutcome> {
+  const input = parseInput(triageDecisionSchema, raw);
   const after = await db.transaction(async (tx) => {
     const before = await lockForEdit(tx, actor, input.id, input.version, 'deviation.triage', 'triage', 'Recording the triage');
+    const [defect] =
+      before.defectId === null
+        ? []
+        : await tx
+            .select({ defaultClassification: capsuleDefects.defaultClassification })
+            .from(capsuleDefects)
+            .where(eq(capsuleDefects.id, before.defectId));
+    const assessed = classify({
+      defaultClassification: defect?.defaultClassification ?? classificationWithoutDefect,
+      severity: input.severity,
+      occurrence: input.occurrence,
+      detection: input.detection,
+      chosen: input.classification ?? null,
+    });
+    if (assessed.overrideJustificationRequired && !input.classificationReason) {
+      const message = `The computed class is ${assessed.computed}: give a written justification for recording ${assessed.classification}.`;
+      throw new ValidationError(message, { classificationReason: [message] });
+    }
     if (input.investigatorId) {
       const [investigator] = await tx
         .select({ id: users.id })
@@ -224,7 +251,7 @@ export async function recordTriage(actor: RecordActor, raw: RecordTriageInput): 
       actor,
       before,
       {
-        classification: input.classification,
+        classification: assessed.classification,
         severity: input.severity,
         occurrence: input.occurrence,
         detection: input.detection,
@@ -300,8 +327,9 @@ async function assertEveryHeldBatchDisposed(tx: Tx, deviationId: number): Promis
   if (open.length > 0) {
     const lots = open.map((b) => b.lot).join(', ');
     throw new ValidationError(
-      `Every held batch needs a disposition before the deviation closes; ${lots} ${open.length === 1 ? 'has' : 'have'} none.`,
-      { dispositions: [`Give a disposition for ${lots}.`] },
+      `Every held batch needs a disposition before the deviation closes; ${lots} ${open.length === 1 ? 'has' : 'have'} none. ` +
+        'Record it with the disposition form under "Held batches".',
+      { dispositions: [`Record a disposition for ${lots} under "Held batches".`] },
     );
   }
 }

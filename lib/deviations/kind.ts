@@ -187,7 +187,7 @@ export function deviationSignedContent(row: DeviationRow): Record<string, unknow
 
 const label = (row: DeviationRow) => row.number ?? `draft #${row.id}`;
 
-async function setBatchStatus(
+export async function setBatchStatus(
   tx: Tx,
   actor: RecordActor,
   batchId: number,

@@ -1,5 +1,8 @@
 import { z } from 'zod';
+import { dispositions as dispositionValues } from '../../db/schema/deviations';
 import { classifications } from '../../db/schema/master-data';
+import { aqlValues, inspectionLevels } from '../sampling/master-tables';
+import { severities } from '../sampling/plan';
 
 /*
  * Input of the deviation commands, shared by server actions (FormData: every value a string, so
@@ -91,3 +94,41 @@ export type ReasonInput = z.input<typeof reasonSchema>;
 
 export const signedReasonSchema = z.object({ ...versioned, reason, password });
 export type SignedReasonInput = z.input<typeof signedReasonSchema>;
+
+/*
+ * The triage decision as the form sends it: the class may be left empty when the computed class
+ * stands (the server works it out from the defect's catalogue class and the score).
+ */
+export const triageDecisionSchema = recordTriageSchema.extend({
+  classification: z.preprocess(
+    (v) => (v === '' || v === null ? undefined : v),
+    z.enum(classifications, { error: 'Pick a classification.' }).optional(),
+  ),
+});
+export type TriageDecisionInput = z.input<typeof triageDecisionSchema>;
+
+/* Held batches: a disposition per batch, and holds extended at triage. */
+
+const blankToUndefined = (v: unknown) => (v === '' || v === null ? undefined : v);
+
+export const recordDispositionSchema = z.object({
+  ...versioned,
+  batchId: id,
+  disposition: z.enum(dispositionValues, { error: 'Pick a disposition.' }),
+  note: optionalText(2000, 'Keep the note under 2,000 characters.'),
+  inspectionLevel: z.preprocess(blankToUndefined, z.enum(inspectionLevels, { error: 'Pick an inspection level.' }).optional()),
+  aql: z.preprocess(blankToUndefined, z.enum(aqlValues, { error: 'Pick an AQL from ISO 2859-1.' }).optional()),
+  inspectionSeverity: z.preprocess(blankToUndefined, z.enum(severities, { error: 'Pick normal, tightened or reduced.' }).optional()),
+});
+export type RecordDispositionInput = z.input<typeof recordDispositionSchema>;
+
+export const extendHoldsSchema = z.object({
+  ...versioned,
+  batchIds: z
+    .preprocess(
+      (v) => (v === undefined || v === '' ? [] : Array.isArray(v) ? v : [v]),
+      z.array(id).min(1, 'Tick at least one batch to put on hold.').max(50, 'Hold at most 50 batches at once.'),
+    )
+    .transform((ids) => [...new Set(ids)]),
+});
+export type ExtendHoldsInput = z.input<typeof extendHoldsSchema>;

@@ -7,8 +7,7 @@ import type { DeviationFormState } from '@/components/deviations/detail-form-sta
 import { defineAction } from '@/lib/define-action';
 import { recordTriage } from '@/lib/deviations/commands';
 import { sendDeviationEvent } from '@/lib/deviations/detail';
-import { assessRisk } from '@/lib/risk/assess';
-import { classifications } from '@/lib/risk/classify';
+import type { TriageDecisionInput } from '@/lib/deviations/schemas';
 
 /*
  * The deviation page's forms post here. Success goes back to the page with a note of what was done
@@ -37,42 +36,14 @@ export async function submitDeviationEvent(_previous: DeviationFormState, formDa
 
 /*
  * The risk widget leaves "class to record" empty when the computed class stands, and names its
- * justification classificationJustification; the command wants the class itself and
- * classificationReason, so the computed class is worked out here the same way the widget did.
+ * justification classificationJustification. The command works out the computed class itself from
+ * the defect's catalogue class in the database; nothing the browser sends can lower that floor.
  */
-const triageForm = z
-  .object({
-    id: z.coerce.number().int().positive(),
-    classification: z.string().optional(),
-    defaultClassification: z.enum(classifications).optional(),
-    classificationJustification: z.string().optional(),
-  })
-  .loose();
+const triageForm = z.object({ classificationJustification: z.string().optional() }).loose();
 
 const runTriage = defineAction(triageForm, (input, user) => {
-  const s = Number(input.severity);
-  const o = Number(input.occurrence);
-  const d = Number(input.detection);
-  let classification = input.classification || undefined;
-  if (!classification && input.defaultClassification && [s, o, d].every((n) => Number.isInteger(n) && n >= 1 && n <= 10)) {
-    classification = assessRisk({
-      defaultClassification: input.defaultClassification,
-      severity: s,
-      occurrence: o,
-      detection: d,
-      chosen: null,
-    }).classification.classification;
-  }
-  return recordTriage(user, {
-    ...(input as Record<string, unknown>),
-    id: input.id,
-    version: input.version as string,
-    classification: classification as 'major',
-    severity: input.severity as string,
-    occurrence: input.occurrence as string,
-    detection: input.detection as string,
-    classificationReason: input.classificationJustification,
-  });
+  const { classificationJustification, ...rest } = input as Record<string, unknown> & { classificationJustification?: string };
+  return recordTriage(user, { ...(rest as Omit<TriageDecisionInput, 'classificationReason'>), classificationReason: classificationJustification });
 });
 
 export async function submitTriage(_previous: DeviationFormState, formData: FormData): Promise<DeviationFormState> {

@@ -1,0 +1,386 @@
+import 'server-only';
+import { and, desc, eq, gte, inArray, lt, notExists, sql } from 'drizzle-orm';
+import { db, type DbOrTx, type Tx } from '../../db/client';
+import { batches, deviationBatches, deviations, fillingRings, machines, products, weightChecks } from '../../db/schema';
+import { diffFields, type FieldChange, writeAudit } from '../audit';
+import { assertCan, can } from '../auth/permissions';
+import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
+import { type RecordActor, ownerScope } from '../records/kind';
+import { parseInput } from '../validation/parse';
+import {
+  defaultAql,
+  defaultInspectionLevel,
+  defaultSeverity,
+  noteRequirement,
+  reInspectionPlan,
+} from './disposition-plan';
+import type { HeldBatchDto } from './detail';
+import { type DeviationRow, deviationKind, setBatchStatus } from './kind';
+import type { Disposition } from './labels';
+import { type ExtendHoldsInput, type RecordDispositionInput, extendHoldsSchema, recordDispositionSchema } from './schemas';
+
+/*
+ * The batches a deviation holds (21 CFR 211.192: the investigation extends to every batch that may
+ * be affected). At triage QA may extend the holds to batches made on the same filler or ring since
+ * its last good weight check; later each held batch gets a disposition. The assigned investigator
+ * recommends it during the investigation; an independent QA approver decides it at approval (or at
+ * triage, for a minor deviation closed there), since releasing or rejecting a batch is the quality
+ * unit's decision (21 CFR 211.22(a)). Every change bumps the deviation's version and is audited on
+ * the deviation in the same transaction (21 CFR 11.10(e)).
+ */
+
+export type DispositionMode = 'recommend' | 'decide';
+
+/**
+ * What this person may do to the dispositions now, or why not. The checks follow the order a person
+ * wants to hear them: the stage, their role, their relation to this deviation.
+ */
+function dispositionAccess(actor: RecordActor, row: DeviationRow): { mode: DispositionMode } | { refusal: Error } {
+  const scope = ownerScope(deviationKind, row);
+  switch (row.status) {
+    case 'investigation':
+      if (!can(actor, 'deviation.investigate', scope)) {
+        return { refusal: new ForbiddenError('Only the assigned QA investigator recommends dispositions during the investigation.') };
+      }
+      if (actor.id !== row.investigatorId) {
+        return { refusal: new ForbiddenError('Only the investigator assigned to this deviation recommends the dispositions of its batches.') };
+      }
+      return { mode: 'recommend' };
+    case 'approval':
+    case 'triage': {
+      if (row.status === 'triage' && row.classification !== 'minor') {
+        return {
+          refusal: new InvalidTransitionError(
+            'At triage only a deviation classified minor (to be closed there) takes dispositions; the others get them through the investigation.',
+          ),
+        };
+      }
+      if (!can(actor, 'deviation.approve', scope)) {
+        return { refusal: new ForbiddenError('Only a QA approver decides the final disposition of a held batch.') };
+      }
+      // Segregation of duties (21 CFR 211.22(a); common practice): whoever raised or investigated it does not decide.
+      if (actor.id === row.raisedBy || actor.id === row.investigatorId) {
+        return { refusal: new ForbiddenError('The final disposition is decided by a QA approver who neither raised nor investigated this deviation.') };
+      }
+      return { mode: 'decide' };
+    }
+    default:
+      return {
+        refusal: new InvalidTransitionError(
+          `Dispositions are recorded during the investigation and at approval; this deviation is ${row.status} now.`,
+        ),
+      };
+  }
+}
+
+/** For the page: whether to show this person the disposition forms, and as what. */
+export function dispositionModeFor(actor: RecordActor, deviation: Pick<DeviationRow, 'status' | 'classification' | 'raisedBy' | 'investigatorId'>): DispositionMode | null {
+  const access = dispositionAccess(actor, deviation as DeviationRow);
+  return 'mode' in access ? access.mode : null;
+}
+
+/** Locks the deviation; missing or invisible is reported as missing, a stale version as a conflict. */
+async function lockDeviation(tx: Tx, actor: RecordActor, id: number, version: number): Promise<DeviationRow> {
+  const [row] = await tx.select().from(deviations).where(eq(deviations.id, id)).for('update');
+  if (!row || !can(actor, 'deviation.read', ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
+  // Someone else's draft is their notebook, not a record yet (as lib/deviations/detail.ts).
+  if (row.status === 'draft' && row.raisedBy !== actor.id) throw new NotFoundError('This deviation');
+  return row;
+}
+
+/** Bumps the version the caller read (optimistic locking) and audits the changes on the deviation. */
+async function bumpAndAudit(tx: Tx, actor: RecordActor, row: DeviationRow, action: string, changes: FieldChange[]): Promise<number> {
+  const [result] = await tx
+    .update(deviations)
+    .set({ version: sql`${deviations.version} + 1` })
+    .where(and(eq(deviations.id, row.id), eq(deviations.version, row.version)));
+  if (result.affectedRows !== 1) throw new ConflictError();
+  await writeAudit(tx, {
+    actor: { id: actor.id, name: actor.name },
+    recordType: 'deviation',
+    recordId: row.id,
+    action,
+    changes,
+  });
+  return row.version + 1;
+}
+
+const dispositionFields = ['recommendedDisposition', 'disposition', 'dispositionNote', 'samplingPlan'] as const;
+
+export interface DispositionOutcome {
+  deviationId: number;
+  /** The deviation's version after the change, for the next edit. */
+  version: number;
+  batch: HeldBatchDto;
+}
+
+/**
+ * Records a held batch's disposition: the investigator's recommendation (which is also the proposal
+ * the approver signs) or the approver's final decision. Reject and rework need a note; so does a
+ * final decision that differs from the recommendation. A re-inspection carries its ISO 2859-1 plan.
+ */
+export async function recordDisposition(actor: RecordActor, raw: RecordDispositionInput): Promise<DispositionOutcome> {
+  const input = parseInput(recordDispositionSchema, raw);
+  return db.transaction(async (tx) => {
+    const row = await lockDeviation(tx, actor, input.id, input.version);
+    const access = dispositionAccess(actor, row);
+    if ('refusal' in access) throw access.refusal;
+    if (row.version !== input.version) throw new ConflictError();
+
+    const [held] = await tx
+      .select({ batch: deviationBatches, lot: batches.lotNumber, lotSize: batches.sizeCapsules, batchStatus: batches.status })
+      .from(deviationBatches)
+      .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
+      .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId), eq(deviationBatches.onHold, true)));
+    if (!held) {
+      const message = 'This batch is not held by this deviation.';
+      throw new ValidationError(message, { batchId: [message] });
+    }
+
+    const needNote = noteRequirement(
+      input.disposition,
+      access.mode === 'decide' && row.status === 'approval' ? { recommended: held.batch.recommendedDisposition } : null,
+    );
+    if (needNote && !input.note) throw new ValidationError(needNote, { note: [needNote] });
+
+    let samplingPlan: string | null = null;
+    if (input.disposition === 're_inspect') {
+      const plan = reInspectionPlan({
+        lotSize: held.lotSize,
+        level: input.inspectionLevel ?? defaultInspectionLevel,
+        aql: input.aql ?? defaultAql,
+        severity: input.inspectionSeverity ?? defaultSeverity,
+      });
+      if (!plan.ok) throw new ValidationError(plan.message, { aql: [plan.message] });
+      samplingPlan = plan.summary;
+    }
+
+    const before = held.batch;
+    const after = {
+      ...before,
+      // At triage (minor, no investigation) and during the investigation the decision is also the recommendation.
+      recommendedDisposition: row.status === 'approval' ? before.recommendedDisposition : input.disposition,
+      disposition: input.disposition as Disposition,
+      // An approver who confirms the recommendation without a word keeps the investigator's note.
+      dispositionNote:
+        input.note ?? (row.status === 'approval' && input.disposition === before.disposition ? before.dispositionNote : null),
+      samplingPlan,
+    };
+    const changes = diffFields(before, after, dispositionFields).map((c) => ({ ...c, field: `${c.field} (${held.lot})` }));
+    if (changes.length === 0) {
+      throw new ValidationError(`${held.lot} already has this disposition; nothing to save.`, { disposition: ['Nothing changed.'] });
+    }
+    await tx
+      .update(deviationBatches)
+      .set({
+        recommendedDisposition: after.recommendedDisposition,
+        disposition: after.disposition,
+        dispositionNote: after.dispositionNote,
+        samplingPlan: after.samplingPlan,
+      })
+      .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId)));
+    const version = await bumpAndAudit(tx, actor, row, 'record_disposition', changes);
+    return {
+      deviationId: row.id,
+      version,
+      batch: {
+        batchId: input.batchId,
+        lotNumber: held.lot,
+        batchStatus: held.batchStatus,
+        onHold: true,
+        recommendedDisposition: after.recommendedDisposition,
+        disposition: after.disposition,
+        dispositionNote: after.dispositionNote,
+        samplingPlan: after.samplingPlan,
+      },
+    };
+  });
+}
+
+export interface HoldSuggestionDto {
+  batchId: number;
+  lotNumber: string;
+  productCode: string;
+  productName: string;
+  /** YYYY-MM-DD. */
+  manufacturedOn: string;
+  machineName: string | null;
+  ringSerial: string | null;
+  /** What it shares with the deviation. */
+  sharedWith: 'machine' | 'ring' | 'machine and ring';
+  status: (typeof batches.$inferSelect)['status'];
+  /** A rejected batch is out of the supply chain already; there is nothing to hold. */
+  canHold: boolean;
+}
+
+export interface HoldSuggestionsDto {
+  /** YYYY-MM-DD: batches made on or after this day are suggested. */
+  since: string;
+  /** Where `since` comes from. */
+  basis: { kind: 'weight_check'; checkedAt: string } | { kind: 'default_window'; days: number };
+  suggestions: HoldSuggestionDto[];
+}
+
+/** Common practice when no passing check is on record: look back 30 days from the occurrence. */
+const defaultLookBackDays = 30;
+const suggestionLimit = 20;
+
+/**
+ * Batches that may share the deviation's cause: made on the same filler or with the same ring since
+ * the last passing weight check there before it happened (common practice: product made since the
+ * last good check is suspect), newest first, leaving out the batches this deviation already holds.
+ * Each side is read from its own index (batches by machine or by ring, then manufacture date).
+ */
+export async function listHoldSuggestions(deviationId: number, viewer: RecordActor, dbOrTx: DbOrTx = db): Promise<HoldSuggestionsDto> {
+  const [row] = await dbOrTx.select().from(deviations).where(eq(deviations.id, deviationId));
+  if (!row || !can(viewer, 'deviation.read', ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
+  if (row.status === 'draft' && row.raisedBy !== viewer.id) throw new NotFoundError('This deviation');
+  assertCan(viewer, 'deviation.triage');
+
+  const onEquipment = row.machineId !== null ? eq(weightChecks.machineId, row.machineId) : row.ringId !== null ? eq(weightChecks.ringId, row.ringId) : null;
+  const [lastGood] = onEquipment
+    ? await dbOrTx
+        .select({ checkedAt: weightChecks.checkedAt })
+        .from(weightChecks)
+        .where(and(onEquipment, eq(weightChecks.verdict, 'pass'), lt(weightChecks.checkedAt, row.occurredAt)))
+        .orderBy(desc(weightChecks.checkedAt))
+        .limit(1)
+    : [];
+  const sinceDate = lastGood ? lastGood.checkedAt : new Date(row.occurredAt.getTime() - defaultLookBackDays * 86_400_000);
+  const since = sinceDate.toISOString().slice(0, 10);
+  const basis: HoldSuggestionsDto['basis'] = lastGood
+    ? { kind: 'weight_check', checkedAt: lastGood.checkedAt.toISOString() }
+    : { kind: 'default_window', days: defaultLookBackDays };
+
+  const notHeldHere = notExists(
+    dbOrTx
+      .select({ one: sql`1` })
+      .from(deviationBatches)
+      .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, batches.id))),
+  );
+  const idsOn = async (column: typeof batches.machineId | typeof batches.ringId, value: number | null) =>
+    value === null
+      ? []
+      : dbOrTx
+          .select({ id: batches.id, manufacturedOn: batches.manufacturedOn })
+          .from(batches)
+          .where(and(eq(column, value), gte(batches.manufacturedOn, since), notHeldHere))
+          .orderBy(desc(batches.manufacturedOn), desc(batches.id))
+          .limit(suggestionLimit);
+  const [byMachine, byRing] = await Promise.all([idsOn(batches.machineId, row.machineId), idsOn(batches.ringId, row.ringId)]);
+  const picked = [...new Map([...byMachine, ...byRing].map((b) => [b.id, b])).values()]
+    .sort((a, b) => b.manufacturedOn.localeCompare(a.manufacturedOn) || b.id - a.id)
+    .slice(0, suggestionLimit);
+  if (picked.length === 0) return { since, basis, suggestions: [] };
+
+  const details = await dbOrTx
+    .select({
+      batchId: batches.id,
+      lotNumber: batches.lotNumber,
+      productCode: products.code,
+      productName: products.name,
+      manufacturedOn: batches.manufacturedOn,
+      machineId: batches.machineId,
+      ringId: batches.ringId,
+      machineName: machines.name,
+      ringSerial: fillingRings.serial,
+      status: batches.status,
+    })
+    .from(batches)
+    .innerJoin(products, eq(products.id, batches.productId))
+    .leftJoin(machines, eq(machines.id, batches.machineId))
+    .leftJoin(fillingRings, eq(fillingRings.id, batches.ringId))
+    .where(inArray(batches.id, picked.map((p) => p.id)));
+  const byId = new Map(details.map((d) => [d.batchId, d]));
+  const suggestions = picked.flatMap((p): HoldSuggestionDto[] => {
+    const d = byId.get(p.id);
+    if (!d) return [];
+    const sameMachine = row.machineId !== null && d.machineId === row.machineId;
+    const sameRing = row.ringId !== null && d.ringId === row.ringId;
+    return [
+      {
+        batchId: d.batchId,
+        lotNumber: d.lotNumber,
+        productCode: d.productCode,
+        productName: d.productName,
+        manufacturedOn: d.manufacturedOn,
+        machineName: d.machineName,
+        ringSerial: d.ringSerial,
+        sharedWith: sameMachine && sameRing ? 'machine and ring' : sameRing ? 'ring' : 'machine',
+        status: d.status,
+        canHold: d.status !== 'rejected',
+      },
+    ];
+  });
+  return { since, basis, suggestions };
+}
+
+export interface ExtendHoldsOutcome {
+  deviationId: number;
+  version: number;
+  /** Lots put on hold by this call. */
+  held: string[];
+}
+
+/**
+ * Extends the deviation's holds at triage (21 CFR 211.192): each batch is added to the deviation
+ * and put on hold, each status change audited on the batch, the list of held batches on the deviation.
+ */
+export async function extendHolds(actor: RecordActor, raw: ExtendHoldsInput): Promise<ExtendHoldsOutcome> {
+  const input = parseInput(extendHoldsSchema, raw);
+  return db.transaction(async (tx) => {
+    const row = await lockDeviation(tx, actor, input.id, input.version);
+    assertCan(actor, 'deviation.triage', ownerScope(deviationKind, row));
+    if (row.status !== 'reported' && row.status !== 'triage') {
+      throw new InvalidTransitionError(`Holds are extended while the deviation is reported or in triage; it is ${row.status} now.`);
+    }
+    if (row.version !== input.version) throw new ConflictError();
+
+    const found = await tx
+      .select({ id: batches.id, lot: batches.lotNumber, status: batches.status })
+      .from(batches)
+      .where(inArray(batches.id, input.batchIds));
+    const missing = input.batchIds.filter((b) => !found.some((f) => f.id === b));
+    if (missing.length > 0) {
+      throw new ValidationError('Pick the batches to hold from the list.', { batchIds: [`No batch has the id ${missing.join(', ')}.`] });
+    }
+    const rejected = found.filter((b) => b.status === 'rejected');
+    if (rejected.length > 0) {
+      const message = `${rejected.map((b) => b.lot).join(', ')} ${rejected.length === 1 ? 'is' : 'are'} rejected already; there is nothing to hold.`;
+      throw new ValidationError(message, { batchIds: [message] });
+    }
+    const existing = await tx
+      .select({ batchId: deviationBatches.batchId, onHold: deviationBatches.onHold })
+      .from(deviationBatches)
+      .where(eq(deviationBatches.deviationId, row.id));
+    const heldBefore = existing.filter((e) => e.onHold).map((e) => e.batchId);
+    const already = found.filter((b) => heldBefore.includes(b.id));
+    if (already.length > 0) {
+      const message = `This deviation holds ${already.map((b) => b.lot).join(', ')} already.`;
+      throw new ValidationError(message, { batchIds: [message] });
+    }
+
+    const label = row.number ?? `draft #${row.id}`;
+    const sorted = [...found].sort((a, b) => a.lot.localeCompare(b.lot));
+    for (const b of sorted) {
+      if (existing.some((e) => e.batchId === b.id)) {
+        await tx
+          .update(deviationBatches)
+          .set({ onHold: true })
+          .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, b.id)));
+      } else {
+        await tx.insert(deviationBatches).values({ deviationId: row.id, batchId: b.id, onHold: true });
+      }
+      await setBatchStatus(tx, actor, b.id, 'on_hold', 'hold', `Put on hold by deviation ${label}`);
+    }
+    const heldAfter = [...heldBefore, ...sorted.map((b) => b.id)].sort((a, b) => a - b);
+    const version = await bumpAndAudit(
+      tx,
+      actor,
+      row,
+      'extend_holds',
+      diffFields({ heldBatchIds: [...heldBefore].sort((a, b) => a - b) }, { heldBatchIds: heldAfter }, ['heldBatchIds']),
+    );
+    return { deviationId: row.id, version, held: sorted.map((b) => b.lot) };
+  });
+}
