@@ -138,7 +138,19 @@ export const saveInvestigationSchema = z.object({
     z.boolean({ error: 'Say whether a CAPA is needed: yes or no.' }).nullable(),
   ),
 });
-export type SaveInvestigationInput = z.input<typeof saveInvestigationSchema>;
+/** What callers send (zod's own input type is all `unknown` because of the preprocessing). */
+export interface SaveInvestigationInput {
+  id: number | string;
+  version: number | string;
+  investigationReport?: string | null;
+  /** An array, or its JSON text as a form posts it. */
+  fiveWhys?: WhyStep[] | string;
+  causeAnalysis?: CauseAnalysis | string;
+  rootCauseCategory?: string | null;
+  rootCause?: string | null;
+  productImpact?: string | null;
+  capaRequired?: boolean | 'yes' | 'no' | '' | null;
+}
 export type SaveInvestigationFields = z.output<typeof saveInvestigationSchema>;
 
 /** Reads stored JSON leniently: a value that no longer parses shows as empty rather than breaking the page. */

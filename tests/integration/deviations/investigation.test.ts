@@ -329,6 +329,7 @@ describe('reading the investigation', () => {
       title: 'A draft nobody else sees',
       whatHappened: 'Still being written by the operator.',
       occurredAt: new Date(Date.now() - 60_000),
+      heldBatchIds: [],
     });
     await expect(getInvestigationView(draft.record.id, await makeUser('qa_investigator'))).rejects.toThrow(NotFoundError);
   });

@@ -4,6 +4,8 @@ import { notFound } from 'next/navigation';
 import { DeviationStatusBadge, DispositionBadge } from '@/components/deviations/detail-badges';
 import { DeviationTimeline } from '@/components/deviations/detail-timeline';
 import { DeviationEventForm, type DeviationEventFormProps } from '@/components/deviations/event-form';
+import { InvestigationForm } from '@/components/deviations/investigation-form';
+import { InvestigationView, hasInvestigationContent } from '@/components/deviations/investigation-view';
 import { TriageForm } from '@/components/deviations/triage-form';
 import { ClassificationBadge } from '@/components/risk/classification-badge';
 import { BatchStatusBadge } from '@/components/ui/batch-status';
@@ -14,6 +16,7 @@ import { requirePageUser } from '@/lib/auth/session';
 import { todayIn } from '@/lib/clocks/dates';
 import { classifications, dueDateFor, dueDaysOf } from '@/lib/clocks/due-dates';
 import { type DeviationDetailDto, getDeviationDetail, listActiveInvestigators } from '@/lib/deviations/detail';
+import { getInvestigationView } from '@/lib/deviations/investigation';
 import { classificationLabels } from '@/lib/deviations/labels';
 import { NotFoundError } from '@/lib/errors';
 import { quarantineCaution } from '@/lib/risk/classify';
@@ -22,10 +25,13 @@ import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signat
 import { getDueDaySettings, getSiteTimeZone } from '@/lib/site-calendar/queries';
 import type { DeviationEventType } from '@/workflows/deviation';
 import { submitDeviationEvent, submitTriage } from './actions';
+import { saveInvestigationAction } from './investigation-actions';
 
 export const metadata: Metadata = { title: 'Deviation' };
 
-const doneMessages: Record<DeviationEventType | 'triage', string> = {
+const doneMessages: Record<DeviationEventType | 'triage' | 'investigation' | 'investigation_capa', string> = {
+  investigation: 'The investigation is saved.',
+  investigation_capa: 'The investigation is saved and a CAPA is proposed; its number is in the investigation section.',
   submit: 'The deviation is reported. Its batches are on hold and QA has it in the triage queue.',
   start_triage: 'Triage has started.',
   triage: 'The triage is saved.',
@@ -148,6 +154,7 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
     throw err;
   });
   const { deviation: d, defect } = detail;
+  const investigation = await getInvestigationView(id, user);
   const done = (await searchParams).done;
   const doneMessage = typeof done === 'string' && done in doneMessages ? doneMessages[done as keyof typeof doneMessages] : null;
   const critical = d.classification === 'critical' || (d.classification === null && defect?.defaultClassification === 'critical');
@@ -289,21 +296,31 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
             </section>
           ) : null}
 
-          {d.investigationReport || d.rootCause || d.rootCauseCategory || d.productImpact || d.capaRequired !== null ? (
-            <section aria-labelledby="investigation-heading" className="rounded-lg border border-ink-200 bg-white p-5">
+          {investigation.canEdit || hasInvestigationContent(investigation) ? (
+            <section aria-labelledby="investigation-heading" className="scroll-mt-4 rounded-lg border border-ink-200 bg-white p-5">
               <h2 id="investigation-heading" className="text-lg font-semibold">
                 Investigation
               </h2>
-              <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
-                {d.rootCauseCategory ? <Row label="Root-cause category">{d.rootCauseCategory}</Row> : null}
-                {d.rootCause ? <Row label="Root cause">{d.rootCause}</Row> : null}
-                {d.productImpact ? <Row label="Product impact">{d.productImpact}</Row> : null}
-                {d.capaRequired !== null ? <Row label="CAPA needed">{d.capaRequired ? 'Yes' : 'No'}</Row> : null}
-              </dl>
-              {d.investigationReport ? (
-                // Shown as text: the report's rich-text rendering (sanitized on the server) belongs to the investigation screen.
-                <p className="mt-3 whitespace-pre-line text-ink-900">{d.investigationReport.replace(/<[^>]*>/g, '')}</p>
-              ) : null}
+              {investigation.canEdit ? (
+                <InvestigationForm
+                  key={`investigation-${investigation.version}`}
+                  action={saveInvestigationAction}
+                  deviationId={investigation.deviationId}
+                  version={investigation.version}
+                  defectName={investigation.defectName}
+                  report={investigation.report}
+                  fiveWhys={investigation.fiveWhys}
+                  branches={investigation.branches}
+                  cautions={investigation.cautions}
+                  rootCauseCategory={investigation.rootCauseCategory}
+                  rootCause={investigation.rootCause}
+                  productImpact={investigation.productImpact}
+                  capaRequired={investigation.capaRequired}
+                  capas={investigation.capas}
+                />
+              ) : (
+                <InvestigationView view={investigation} />
+              )}
             </section>
           ) : null}
 
