@@ -384,3 +384,13 @@ export async function extendHolds(actor: RecordActor, raw: ExtendHoldsInput): Pr
     return { deviationId: row.id, version, held: sorted.map((b) => b.lot) };
   });
 }
+
+/** Lot size (capsules) of each batch the deviation holds, for the re-inspection plan on the page. */
+export async function listHeldBatchSizes(deviationId: number, dbOrTx: DbOrTx = db): Promise<Record<number, number>> {
+  const rows = await dbOrTx
+    .select({ batchId: batches.id, size: batches.sizeCapsules })
+    .from(deviationBatches)
+    .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
+    .where(eq(deviationBatches.deviationId, deviationId));
+  return Object.fromEntries(rows.map((r) => [r.batchId, r.size]));
+}

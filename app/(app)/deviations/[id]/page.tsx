@@ -7,6 +7,8 @@ import { DeviationEventForm, type DeviationEventFormProps } from '@/components/d
 import { InvestigationForm } from '@/components/deviations/investigation-form';
 import { InvestigationView, hasInvestigationContent } from '@/components/deviations/investigation-view';
 import { TriageForm } from '@/components/deviations/triage-form';
+import { DispositionForm } from '@/components/deviations/disposition-form';
+import { HoldSuggestions } from '@/components/deviations/hold-suggestions';
 import { ClassificationBadge } from '@/components/risk/classification-badge';
 import { BatchStatusBadge } from '@/components/ui/batch-status';
 import { formatUtc } from '@/components/ui/format';
@@ -16,8 +18,11 @@ import { requirePageUser } from '@/lib/auth/session';
 import { todayIn } from '@/lib/clocks/dates';
 import { classifications, dueDateFor, dueDaysOf } from '@/lib/clocks/due-dates';
 import { type DeviationDetailDto, getDeviationDetail, listActiveInvestigators } from '@/lib/deviations/detail';
+import { dispositionModeFor, listHeldBatchSizes, listHoldSuggestions } from '@/lib/deviations/batches';
+import { classificationWithoutDefect } from '@/lib/deviations/commands';
 import { getInvestigationView } from '@/lib/deviations/investigation';
-import { classificationLabels } from '@/lib/deviations/labels';
+import { classificationLabels, dispositionLabels } from '@/lib/deviations/labels';
+import { can } from '@/lib/auth/permissions';
 import { NotFoundError } from '@/lib/errors';
 import { quarantineCaution } from '@/lib/risk/classify';
 import { getCurrentRiskScales } from '@/lib/risk-scales/queries';
@@ -25,11 +30,14 @@ import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signat
 import { getDueDaySettings, getSiteTimeZone } from '@/lib/site-calendar/queries';
 import type { DeviationEventType } from '@/workflows/deviation';
 import { submitDeviationEvent, submitTriage } from './actions';
+import { submitDisposition, submitHolds } from './batch-actions';
 import { saveInvestigationAction } from './investigation-actions';
 
 export const metadata: Metadata = { title: 'Deviation' };
 
-const doneMessages: Record<DeviationEventType | 'triage' | 'investigation' | 'investigation_capa', string> = {
+const doneMessages: Record<DeviationEventType | 'triage' | 'investigation' | 'investigation_capa' | 'disposition' | 'holds', string> = {
+  disposition: 'The disposition is saved.',
+  holds: 'The batches are on hold under this deviation.',
   investigation: 'The investigation is saved.',
   investigation_capa: 'The investigation is saved and a CAPA is proposed; its number is in the investigation section.',
   submit: 'The deviation is reported. Its batches are on hold and QA has it in the triage queue.',
@@ -164,6 +172,12 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
     ? true
     : d.status === 'triage' && user.role === 'qa_investigator';
   const triage = canTriage ? await triageProps(detail) : null;
+  // Held batches: who may record a disposition now, and QA's suggestions for extending the holds.
+  const dispositionMode = dispositionModeFor(user, d);
+  const [batchSizes, holds] = await Promise.all([
+    dispositionMode ? listHeldBatchSizes(id) : Promise.resolve({} as Record<number, number>),
+    (d.status === 'reported' || d.status === 'triage') && can(user, 'deviation.triage') ? listHoldSuggestions(id, user) : Promise.resolve(null),
+  ]);
   const title = d.number ?? 'Draft';
 
   return (
@@ -242,18 +256,21 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
                 {d.immediateActions ? <span className="mt-1 block whitespace-pre-line">{d.immediateActions}</span> : null}
               </Row>
             </dl>
-            <h3 className="mt-5 font-semibold">Held batches</h3>
+            <h3 id="held-batches-heading" className="mt-5 font-semibold">
+              Held batches
+            </h3>
             {detail.heldBatches.length === 0 ? (
               <p className="text-ink-600">No batches are held by this deviation.</p>
             ) : (
-              <div className="mt-2 overflow-x-auto">
+              <div className="mt-2 overflow-x-auto" role="region" aria-labelledby="held-batches-heading" tabIndex={0}>
                 <table className="w-full text-left">
-                  <caption className="sr-only">Batches held by this deviation, their status and disposition</caption>
+                  <caption className="sr-only">Batches held by this deviation, their status, recommended and final disposition</caption>
                   <thead>
                     <tr className="border-b border-ink-200 text-sm text-ink-600">
                       <th scope="col" className="py-2 pr-4">Lot</th>
                       <th scope="col" className="py-2 pr-4">Batch status</th>
-                      <th scope="col" className="py-2 pr-4">Disposition</th>
+                      <th scope="col" className="py-2 pr-4">Recommended</th>
+                      <th scope="col" className="py-2 pr-4">Final disposition</th>
                     </tr>
                   </thead>
                   <tbody>
@@ -266,9 +283,11 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
                         <td className="py-2 pr-4">
                           <BatchStatusBadge status={b.batchStatus} />
                         </td>
+                        <td className="py-2 pr-4">{b.recommendedDisposition ? dispositionLabels[b.recommendedDisposition] : '—'}</td>
                         <td className="py-2 pr-4">
                           <DispositionBadge disposition={b.disposition} />
                           {b.dispositionNote ? <span className="mt-1 block text-sm">{b.dispositionNote}</span> : null}
+                          {b.samplingPlan ? <span className="mt-1 block text-sm text-ink-700">Sampling: {b.samplingPlan}</span> : null}
                         </td>
                       </tr>
                     ))}
@@ -276,6 +295,28 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
                 </table>
               </div>
             )}
+            {dispositionMode
+              ? detail.heldBatches
+                  .filter((b) => b.onHold)
+                  .map((b) => (
+                    <DispositionForm
+                      key={`disposition-${b.batchId}-${d.version}`}
+                      action={submitDisposition}
+                      deviationId={d.id}
+                      version={d.version}
+                      mode={dispositionMode}
+                      overruling={d.status === 'approval'}
+                      batch={{
+                        batchId: b.batchId,
+                        lotNumber: b.lotNumber,
+                        lotSize: batchSizes[b.batchId] ?? 0,
+                        recommendedDisposition: b.recommendedDisposition,
+                        disposition: b.disposition,
+                        dispositionNote: b.dispositionNote,
+                      }}
+                    />
+                  ))
+              : null}
           </section>
 
           {d.classification || d.rpn !== null || d.investigatorId !== null ? (
@@ -341,6 +382,20 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
             What you can do
           </h2>
           {triage ? <TriageForm key={`triage-${d.version}`} {...triage} /> : null}
+          {holds ? (
+            <HoldSuggestions
+              key={`holds-${d.version}`}
+              action={submitHolds}
+              deviationId={d.id}
+              version={d.version}
+              windowText={
+                holds.basis.kind === 'weight_check'
+                  ? `since the last passing weight check before the deviation (${formatUtc(holds.basis.checkedAt)})`
+                  : `in the ${holds.basis.days} days before the deviation (no passing weight check on record for this filler)`
+              }
+              suggestions={holds.suggestions}
+            />
+          ) : null}
           {detail.allowedEvents.length === 0 && !triage ? (
             <p className="text-ink-700">{noActionsText(d.status)}</p>
           ) : (
@@ -394,7 +449,7 @@ async function triageProps(detail: DeviationDetailDto) {
     version: d.version,
     scales: scales.scales,
     scaleVersion: scales.version,
-    defaultClassification: detail.defect?.defaultClassification ?? 'major',
+    defaultClassification: detail.defect?.defaultClassification ?? classificationWithoutDefect,
     catalogueSeverity: detail.defect?.defaultSeverity ?? null,
     caution: detail.defect?.caution ?? null,
     initial: {
