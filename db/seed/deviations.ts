@@ -15,6 +15,7 @@ import { deviationMachine } from '../../workflows/deviation';
 import type { DeviationState } from '../../workflows/states';
 import type { Tx } from '../client';
 import { batches, capsuleDefects, deviationBatches, deviations, type dispositions, machines, signatures, stateHistory, users } from '../schema';
+import { completeInvestigation, firstSubmission, investigationInProgress } from './deviation-investigations';
 import { mulberry32, randomInt, type Prng } from './prng';
 import { scenarioEnd, type DemoScenario } from './scenario';
 
@@ -67,6 +68,8 @@ export interface PlannedColumns {
   detection: number | null;
   rpn: number | null;
   investigationReport: string | null;
+  fiveWhys: string | null;
+  causeAnalysis: string | null;
   rootCauseCategory: string | null;
   rootCause: string | null;
   productImpact: string | null;
@@ -920,6 +923,8 @@ const emptyColumns = (story: Story): PlannedColumns => ({
   detection: null,
   rpn: null,
   investigationReport: null,
+  fiveWhys: null,
+  causeAnalysis: null,
   rootCauseCategory: null,
   rootCause: null,
   productImpact: null,
@@ -1035,12 +1040,17 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
 
     at += randomInt(rand, 5, 25) * minuteMs;
     take('assign_investigation', triager, null);
-    if (story.path === 'investigation' && !story.rework) return finish(story, batch, columns, state, steps);
+    if (story.path === 'investigation' && !story.rework) {
+      // Under way: the investigator has saved notes, the first whys and a few causes ruled out.
+      at = Math.min(at + 3 * hourMs, lastMoment);
+      edit('save_investigation', t.investigator, investigationInProgress(story.defect));
+      return finish(story, batch, columns, state, steps);
+    }
 
     const inv = story.investigation;
     if (!inv) throw new Error(`demo deviation ${story.key}: the ${story.path} path needs an investigation`);
     const findings: Partial<PlannedColumns> = {
-      investigationReport: inv.report,
+      ...completeInvestigation(story.defect, inv),
       rootCauseCategory: inv.category,
       rootCause: inv.rootCause,
       productImpact: inv.productImpact,
@@ -1050,7 +1060,7 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
     at = nextWorkday(at, rand, story.investigationDays ?? (recent ? randomInt(rand, 2, 4) : randomInt(rand, 6, 16)));
     if (story.rework) {
       // The first submission lacked what the approver asks for; the findings were completed after.
-      take('submit_for_approval', t.investigator, null, { investigationReport: inv.report.split('. ')[0] + '.' });
+      take('submit_for_approval', t.investigator, null, { ...findings, ...firstSubmission(story.defect, inv) });
       at = nextWorkday(at, rand);
       take('return_for_rework', approver, story.rework);
       if (story.path === 'investigation') return finish(story, batch, columns, state, steps);
@@ -1183,8 +1193,8 @@ export async function seedDeviations(tx: Tx, scenario: DemoScenario): Promise<vo
       rpn: c.rpn,
       riskScaleVersion: c.rpn === null ? null : 1,
       investigationReport: c.investigationReport,
-      fiveWhys: null,
-      causeAnalysis: null,
+      fiveWhys: c.fiveWhys,
+      causeAnalysis: c.causeAnalysis,
       rootCauseCategory: c.rootCauseCategory,
       rootCause: c.rootCause,
       productImpact: c.productImpact,
@@ -1230,7 +1240,7 @@ export async function seedDeviations(tx: Tx, scenario: DemoScenario): Promise<vo
       const at = new Date(s.at);
       const after = toRow(columns, s.toState, i + 1, id, createdAt, at);
       const actor = person(s.by);
-      if (s.event !== 'record_triage') {
+      if (s.event !== 'record_triage' && s.event !== 'save_investigation') {
         await tx.insert(stateHistory).values({
           recordType: 'deviation',
           recordId: id,
