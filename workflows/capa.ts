@@ -86,7 +86,6 @@ export const capaMachine = setup({
   actions: {
     // Named here, performed by lib/capa inside the transaction that makes the change.
     notifyOwnerAssigned: () => {},
-    notifyPlanApprovalRequested: () => {},
     notifyPlanApproved: () => {},
     notifyEffectivenessReview: () => {},
     notifyClosed: () => {},
