@@ -9,6 +9,7 @@ import { batches, capsuleDefects, fillingRings, machines, products, settings, st
 import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario';
 import { demoPassword } from './demo-users';
 import { seedClocks } from './clocks';
+import { seedDeviationDispositions } from './deviation-dispositions';
 import { seedDeviations } from './deviations';
 import { seedRiskScales } from './risk';
 import { seedWeightChecks } from './weight';
@@ -166,6 +167,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
 
   await seedWeightChecks(tx, scenario);
   await seedDeviations(tx, scenario);
+  await seedDeviationDispositions(tx);
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) {
