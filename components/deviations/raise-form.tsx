@@ -2,6 +2,7 @@
 
 import Link from 'next/link';
 import { type ReactNode, useEffect, useRef, useState } from 'react';
+import { EvidenceDropzone } from '@/components/evidence/evidence-dropzone';
 import { Button } from '@/components/ui/button';
 import { TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/notice';
@@ -404,7 +405,14 @@ export function RaiseForm(props: RaiseFormProps) {
             <TextField name="sampleDescription" label="Which sample" hint="e.g. IPC sample 10:00, outfeed chute" value={form.sampleDescription} errors={errors.sampleDescription} onChange={(e) => set('sampleDescription', e.target.value)} />
           </div>
           <TextField name="occurredAt" type="datetime-local" label="When it happened" hint="Set to now; change it if you saw it earlier." required value={form.occurredAt} errors={errors.occurredAt} onChange={(e) => set('occurredAt', e.target.value)} />
-          <Notice tone="neutral" live={false}>Photos: not on this form yet. Soon they can be attached from the deviation page after you submit.</Notice>
+          {form.id ? (
+            <section aria-labelledby="raise-photos-heading" className="flex flex-col gap-2">
+              <h3 id="raise-photos-heading" className="font-semibold text-ink-900">
+                Photos and files <span className="font-normal text-ink-600">(optional)</span>
+              </h3>
+              <EvidenceDropzone uploadUrl={`/api/deviations/${form.id}/attachments`} hint="Each one is attached to this draft as soon as it is sent; QA sees them once you submit." />
+            </section>
+          ) : null}
         </>
       ) : null}
 

@@ -113,6 +113,6 @@ export async function assertAcceptableFile(bytes: Uint8Array, claimedName: strin
   const detected = await detectFileType(bytes);
   if (detected.ok) return detected.contentType;
   throw new FileTypeRefusedError(
-    `“${claimedName}” is ${detected.reason}, whatever its name says. It was not attached: attach ${acceptedList}.`,
+    `“${claimedName}” is ${detected.reason}, whatever its name says. Only ${acceptedList} can be attached.`,
   );
 }

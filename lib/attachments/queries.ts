@@ -113,3 +113,8 @@ export async function openPreview(
   }
   return { stream, contentType: row.contentType, sizeBytes: row.sizeBytes, fileName: row.fileName };
 }
+
+/** Why this viewer may not add evidence to the record now, or null when they may (the command checks again). */
+export async function getAttachRefusal(recordType: RecordType, recordId: number, viewer: Actor, dbOrTx: DbOrTx = db): Promise<string | null> {
+  return (await getRecordAccess(dbOrTx, recordType, recordId, viewer)).attachRefusal;
+}

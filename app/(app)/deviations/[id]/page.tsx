@@ -3,6 +3,10 @@ import Link from 'next/link';
 import { notFound } from 'next/navigation';
 import { DeviationStatusBadge, DispositionBadge } from '@/components/deviations/detail-badges';
 import { DeviationTimeline } from '@/components/deviations/detail-timeline';
+import { CommentForm } from '@/components/comments/comment-form';
+import { CommentThread } from '@/components/comments/comment-thread';
+import { EvidenceDropzone } from '@/components/evidence/evidence-dropzone';
+import { EvidenceList } from '@/components/evidence/evidence-list';
 import { DeviationEventForm, type DeviationEventFormProps } from '@/components/deviations/event-form';
 import { InvestigationForm } from '@/components/deviations/investigation-form';
 import { InvestigationView, hasInvestigationContent } from '@/components/deviations/investigation-view';
@@ -17,9 +21,11 @@ import { PageHeader } from '@/components/ui/page-header';
 import { requirePageUser } from '@/lib/auth/session';
 import { todayIn } from '@/lib/clocks/dates';
 import { classifications, dueDateFor, dueDaysOf } from '@/lib/clocks/due-dates';
+import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
 import { type DeviationDetailDto, getDeviationDetail, listActiveInvestigators } from '@/lib/deviations/detail';
 import { dispositionModeFor, listHeldBatchSizes, listHoldSuggestions } from '@/lib/deviations/batches';
 import { classificationWithoutDefect } from '@/lib/deviations/commands';
+import { listComments, listMentionOptions } from '@/lib/comments/queries';
 import { getInvestigationView } from '@/lib/deviations/investigation';
 import { classificationLabels, dispositionLabels } from '@/lib/deviations/labels';
 import { can } from '@/lib/auth/permissions';
@@ -31,6 +37,7 @@ import { getDueDaySettings, getSiteTimeZone } from '@/lib/site-calendar/queries'
 import type { DeviationEventType } from '@/workflows/deviation';
 import { submitDeviationEvent, submitTriage } from './actions';
 import { submitDisposition, submitHolds } from './batch-actions';
+import { addDeviationComment } from './comment-actions';
 import { saveInvestigationAction } from './investigation-actions';
 
 export const metadata: Metadata = { title: 'Deviation' };
@@ -179,6 +186,12 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
     (d.status === 'reported' || d.status === 'triage') && can(user, 'deviation.triage') ? listHoldSuggestions(id, user) : Promise.resolve(null),
   ]);
   const title = d.number ?? 'Draft';
+  const [evidence, attachRefusal, comments, mentionPeople] = await Promise.all([
+    listAttachments('deviation', id, user),
+    getAttachRefusal('deviation', id, user),
+    listComments('deviation', id, user),
+    listMentionOptions('deviation', id, user),
+  ]);
 
   return (
     <>
@@ -417,6 +430,28 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
             Timeline
           </h2>
           <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} userNames={detail.userNames} />
+        </section>
+      </div>
+
+      <div className="mt-6 grid grid-cols-1 gap-6 xl:grid-cols-2">
+        <section id="evidence" aria-labelledby="evidence-heading" className="flex min-w-0 flex-col gap-4 rounded-lg border border-ink-200 bg-white p-5">
+          <h2 id="evidence-heading" className="text-lg font-semibold">
+            Evidence
+          </h2>
+          <EvidenceList items={evidence} />
+          {attachRefusal ? (
+            <p className="text-sm text-ink-600">{attachRefusal}</p>
+          ) : (
+            <EvidenceDropzone uploadUrl={`/api/deviations/${d.id}/attachments`} refreshAfterUpload hint="Each file is checked, given its SHA-256 and kept with this deviation for good." />
+          )}
+        </section>
+
+        <section id="comments" aria-labelledby="comments-heading" className="flex min-w-0 flex-col gap-4 rounded-lg border border-ink-200 bg-white p-5">
+          <h2 id="comments-heading" className="text-lg font-semibold">
+            Comments
+          </h2>
+          <CommentThread comments={comments} />
+          <CommentForm recordId={d.id} people={mentionPeople} action={addDeviationComment} />
         </section>
       </div>
 
