@@ -1,20 +1,25 @@
 import type { Metadata } from 'next';
-import { PlannedWork } from '@/components/ui/planned-work';
+import { CapaTable } from '@/components/capa/capa-table';
+import { PageHeader } from '@/components/ui/page-header';
 import { requirePageUser } from '@/lib/auth/session';
+import { capaListSearch, parseCapaListQuery } from '@/lib/capa/list-query';
+import { listCapaOwners, listCapas } from '@/lib/capa/queries';
 
 export const metadata: Metadata = { title: 'CAPA' };
 
-export default async function CapaPage() {
-  await requirePageUser('capa.read', { returnTo: '/capa' });
+export default async function CapaPage({ searchParams }: PageProps<'/capa'>) {
+  const query = parseCapaListQuery(await searchParams);
+  const search = capaListSearch(query);
+  const user = await requirePageUser('capa.read', { returnTo: search ? `/capa?${search}` : '/capa' });
+  const [firstPage, owners] = await Promise.all([listCapas(query, user), listCapaOwners()]);
   return (
-    <PlannedWork
-      title="CAPA"
-      summary="Corrective and preventive actions, and the proof that they worked."
-      coming={[
-        'A CAPA raised from a deviation, a complaint or a trend.',
-        'A plan approved by QA, with actions that each have an owner, a due date and evidence.',
-        'An effectiveness check against criteria set in advance: closed as effective, or back to planning.',
-      ]}
-    />
+    <>
+      <PageHeader
+        title="CAPA"
+        description="Corrective and preventive actions raised from deviations, complaints and trends, and the evidence that they worked. Newest first unless you sort otherwise."
+      />
+      {/* A new URL from outside the list (a nav link, a bookmark) starts the table afresh. */}
+      <CapaTable key={search} initialQuery={query} initialPage={firstPage} owners={owners} />
+    </>
   );
 }
