@@ -1,9 +1,9 @@
 import { uploadAttachment } from '@/lib/attachments/commands';
 import { respondEvidence } from '@/lib/attachments/http';
 import { parseId, readUploadedFile } from '@/lib/attachments/upload-request';
-import { listAttachments } from '@/lib/attachments/queries';
+import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
 import { requireUser } from '@/lib/auth/session';
-import { NotFoundError } from '@/lib/errors';
+import { ForbiddenError, NotFoundError } from '@/lib/errors';
 
 /*
  * GET /api/deviations/:id/attachments → the evidence list (AttachmentDto[]) for whoever may read the
@@ -28,6 +28,9 @@ export async function POST(request: Request, { params }: RouteContext<'/api/devi
   return respondEvidence(async () => {
     const user = await requireUser();
     const recordId = deviationId((await params).id);
+    // Refuse before reading up to 25 MB of body; the command checks again under a lock.
+    const refusal = await getAttachRefusal('deviation', recordId, user);
+    if (refusal) throw new ForbiddenError(refusal);
     const file = await readUploadedFile(request);
     return uploadAttachment(user, { recordType: 'deviation', recordId, file });
   }, 201);
