@@ -52,10 +52,20 @@ const dispositionHints: Record<Disposition, string> = {
   reject: 'The batch is destroyed or returned; it never ships.',
 };
 
+type AttemptState = DeviationFormState & { attempt: number };
+
 const isDisposition = (v: string | undefined): v is Disposition => !!v && (dispositionOrder as string[]).includes(v);
 
 export function DispositionForm(props: DispositionFormProps) {
-  const [state, formAction] = useActionState(props.action, idleDeviationFormState);
+  // Each answer remounts the form (key = attempt): React resets a form after its action runs, and a
+  // fresh mount is what makes the inputs show the choices kept in state rather than their defaults.
+  const [state, formAction] = useActionState(
+    async (previous: AttemptState, formData: FormData): Promise<AttemptState> => ({
+      ...(await props.action(previous, formData)),
+      attempt: previous.attempt + 1,
+    }),
+    { ...idleDeviationFormState, attempt: 0 },
+  );
   const uid = useId();
   const v = state.values;
   const [choice, setChoice] = useState<Disposition | null>(
@@ -72,7 +82,7 @@ export function DispositionForm(props: DispositionFormProps) {
   const heading = props.mode === 'recommend' ? `Recommend a disposition for ${props.batch.lotNumber}` : `Decide the disposition of ${props.batch.lotNumber}`;
 
   return (
-    <form action={formAction} className="mt-3 flex flex-col gap-4 rounded-md border border-ink-200 bg-ink-50 p-4" noValidate aria-labelledby={`${uid}-heading`}>
+    <form key={state.attempt} action={formAction} className="mt-3 flex flex-col gap-4 rounded-md border border-ink-200 bg-ink-50 p-4" noValidate aria-labelledby={`${uid}-heading`}>
       <h4 id={`${uid}-heading`} className="font-semibold">
         {heading}
       </h4>
@@ -97,7 +107,7 @@ export function DispositionForm(props: DispositionFormProps) {
                 type="radio"
                 name="disposition"
                 value={d}
-                checked={choice === d}
+                defaultChecked={choice === d}
                 onChange={() => setChoice(d)}
                 className="mt-1 h-5 w-5 shrink-0"
               />
@@ -124,7 +134,7 @@ export function DispositionForm(props: DispositionFormProps) {
               label="Inspection level"
               hint="General level II unless the procedure says otherwise."
               options={inspectionLevels.map((l) => ({ value: l, label: l.startsWith('S') ? `Special ${l}` : `General ${l}` }))}
-              value={level}
+              defaultValue={level}
               onChange={(e) => setLevel(e.target.value as InspectionLevel)}
               errors={errors.inspectionLevel}
             />
@@ -134,7 +144,7 @@ export function DispositionForm(props: DispositionFormProps) {
               label="AQL"
               hint="Percent nonconforming (up to 10)."
               options={aqlValues.map((a) => ({ value: a, label: a }))}
-              value={aql}
+              defaultValue={aql}
               onChange={(e) => setAql(e.target.value as Aql)}
               errors={errors.aql}
             />
@@ -144,7 +154,7 @@ export function DispositionForm(props: DispositionFormProps) {
               label="Inspection"
               hint="Normal at the start (ISO 2859-1, 9.1)."
               options={severities.map((s) => ({ value: s, label: severityLabels[s] }))}
-              value={severity}
+              defaultValue={severity}
               onChange={(e) => setSeverity(e.target.value as Severity)}
               errors={errors.inspectionSeverity}
             />

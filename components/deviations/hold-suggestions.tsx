@@ -35,9 +35,15 @@ export interface HoldSuggestionsProps {
 }
 
 export function HoldSuggestions(props: HoldSuggestionsProps) {
-  const [state, formAction] = useActionState(props.action, idleDeviationFormState);
+  // Each answer remounts the form (key = attempt) so the ticks kept in state show again after React resets it.
+  const [state, formAction] = useActionState(
+    async (previous: DeviationFormState & { attempt: number }, formData: FormData) => ({
+      ...(await props.action(previous, formData)),
+      attempt: previous.attempt + 1,
+    }),
+    { ...idleDeviationFormState, attempt: 0 },
+  );
   const uid = useId();
-  // Controlled, so the ticks survive a refused save (React resets a form after its action runs).
   const [ticked, setTicked] = useState<ReadonlySet<number>>(new Set());
   const toggle = (id: number) =>
     setTicked((prev) => {
@@ -59,7 +65,7 @@ export function HoldSuggestions(props: HoldSuggestionsProps) {
       {props.suggestions.length === 0 ? (
         <p className="mt-3 text-ink-700">No other batches ran on this filler or ring in that time.</p>
       ) : (
-        <form action={formAction} className="mt-4 flex flex-col gap-4" noValidate>
+        <form key={state.attempt} action={formAction} className="mt-4 flex flex-col gap-4" noValidate>
           {state.failed && state.message ? <Notice tone="danger" title={state.message} /> : null}
           <input type="hidden" name="id" value={props.deviationId} />
           <input type="hidden" name="version" value={props.version} />
@@ -92,7 +98,7 @@ export function HoldSuggestions(props: HoldSuggestionsProps) {
                               name="batchIds"
                               value={s.batchId}
                               disabled={!s.canHold}
-                              checked={ticked.has(s.batchId)}
+                              defaultChecked={ticked.has(s.batchId)}
                               onChange={() => toggle(s.batchId)}
                               aria-describedby={`${boxId}-lot`}
                               className="h-5 w-5"
