@@ -5,6 +5,7 @@ import { type CurrentUser, type PasswordChangeOption, requireUser } from './auth
 import { parseInput } from './validation/parse';
 import {
   ConflictError,
+  ServiceUnavailableError,
   ForbiddenError,
   InvalidTransitionError,
   NotFoundError,
@@ -52,6 +53,7 @@ export function describeError(err: unknown): DescribedError {
     else if (err instanceof NotFoundError) status = 404;
     else if (err instanceof ConflictError || err instanceof InvalidTransitionError) status = 409;
     else if (err instanceof ValidationError) status = 422;
+    else if (err instanceof ServiceUnavailableError) status = 503;
     return { status, message: err.message, fieldErrors };
   }
   const ref = newReference();

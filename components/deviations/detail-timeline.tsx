@@ -50,22 +50,42 @@ const fieldLabels: Record<string, string> = {
   machineId: 'Machine',
   ringId: 'Filling ring',
   occurredAt: 'Occurred',
+  recommendedDisposition: 'Recommended disposition',
+  disposition: 'Disposition',
+  dispositionNote: 'Disposition note',
+  samplingPlan: 'Re-inspection plan',
+  attachment: 'File',
+  comment: 'Comment',
 };
+
+/** Per-batch changes are named "disposition (BW-2026-1110-A)": the label of the field, then the lot. */
+function labelOf(field: string): string {
+  const m = /^(\w+) \((.+)\)$/.exec(field);
+  if (m) return `${fieldLabels[m[1]!] ?? m[1]} (${m[2]})`;
+  return fieldLabels[field] ?? field;
+}
+
+const baseField = (field: string) => field.replace(/ \(.+\)$/, '');
 
 type Names = Readonly<Record<number, string>>;
 
-function show(field: string, value: unknown, names: Names): string {
+function show(rawField: string, value: unknown, names: Names): string {
+  const field = baseField(rawField);
   if (value === null || value === undefined || value === '') return '(empty)';
   if (typeof value === 'number' && (userIdFields as readonly string[]).includes(field)) return names[value] ?? `user #${value}`;
   if (typeof value === 'boolean') return value ? 'Yes' : 'No';
   if (typeof value === 'string') {
     if (field === 'status') return deviationStateLabels[value as keyof typeof deviationStateLabels] ?? value;
     if (field === 'classification') return classificationLabels[value as keyof typeof classificationLabels] ?? value;
-    if (field === 'disposition') return dispositionLabels[value as keyof typeof dispositionLabels] ?? value;
+    if (field === 'disposition' || field === 'recommendedDisposition') return dispositionLabels[value as keyof typeof dispositionLabels] ?? value;
     if (/^\d{4}-\d{2}-\d{2}T/.test(value)) return formatUtc(value, true);
     // Rich text reads as its words here; the full saved version stays in the audit trail itself.
     const text = value.includes('<') ? value.replace(/<[^>]*>/g, ' ').replace(/\s+/g, ' ').trim() : value;
     return text.length > 160 ? `${text.slice(0, 157)}…` : text;
+  }
+  if (field === 'attachment' && typeof value === 'object') {
+    const a = value as { fileName?: string; sha256?: string };
+    return `${a.fileName ?? 'file'}${a.sha256 ? ` (SHA-256 ${a.sha256.slice(0, 12)}…)` : ''}`;
   }
   if (field === 'signature' && typeof value === 'object') {
     const s = value as { meaning?: string; recordVersion?: number };
@@ -80,6 +100,11 @@ const actionLabels: Record<string, string> = {
   update_draft: 'Draft edited',
   record_triage: 'Triage recorded',
   signed: 'Signed',
+  record_disposition: 'Disposition recorded',
+  extend_holds: 'Holds extended',
+  save_investigation: 'Investigation saved',
+  comment: 'Comment added',
+  attachment_added: 'Evidence attached',
 };
 
 export function DeviationTimeline({
@@ -130,7 +155,7 @@ function Changes({ entries, names, skipStatus }: { entries: readonly AuditEntryD
     <ul className="mt-1 text-sm break-words text-ink-800">
       {lines.map(({ key, c }) => (
         <li key={key}>
-          {fieldLabels[c.field] ?? c.field}: {show(c.field, c.from, names)} → {show(c.field, c.to, names)}
+          {labelOf(c.field)}: {show(c.field, c.from, names)} → {show(c.field, c.to, names)}
         </li>
       ))}
     </ul>

@@ -74,6 +74,12 @@ export function buildTimeline(input: {
     return { kind: 'transition', key: `h${h.id}`, at: h.at, history: h, audit: own, signatures };
   });
 
+  // A comment writes an audit entry of its own (action "comment"); the comment itself shows it once.
+  for (const c of input.comments ?? []) {
+    const own = audit.find((a) => !usedAudit.has(a.id) && a.action === 'comment' && a.userId === c.userId && near(a.at, c.at));
+    if (own) usedAudit.add(own.id);
+  }
+
   const rest: TimelineEntry[] = [
     ...input.signatures
       .filter((s) => !usedSignatures.has(s.id))

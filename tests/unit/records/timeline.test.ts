@@ -129,3 +129,18 @@ describe('audit change helpers', () => {
     expect(userIdsInChanges(null)).toEqual([]);
   });
 });
+
+describe('comments in the timeline', () => {
+  it("shows a comment once: its own audit entry is folded into it, another person's is not", () => {
+    const items = buildTimeline({
+      history: [],
+      signatures: [],
+      audit: [
+        audit(1, 'comment', 4, '2026-11-02T11:00:00.010Z'),
+        audit(2, 'comment', 5, '2026-11-02T11:00:00.010Z'),
+      ],
+      comments: [{ id: 9, userId: 4, userName: 'user 4', body: 'Photo added', at: '2026-11-02T11:00:00.000Z' }],
+    });
+    expect(items.map((i) => i.key)).toEqual(['a2', 'c9']);
+  });
+});

@@ -429,7 +429,7 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
           <h2 id="timeline-heading" className="mb-3 text-lg font-semibold">
             Timeline
           </h2>
-          <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} userNames={detail.userNames} />
+          <DeviationTimeline history={detail.history} signatures={detail.signatures} audit={detail.audit} comments={comments} userNames={detail.userNames} />
         </section>
       </div>
 
