@@ -69,6 +69,36 @@ const baseField = (field: string) => field.replace(/ \(.+\)$/, '');
 
 type Names = Readonly<Record<number, string>>;
 
+const entities: Record<string, string> = { amp: '&', lt: '<', gt: '>', quot: '"', '#39': "'", nbsp: ' ' };
+
+function decodeEntities(text: string): string {
+  return text.replace(/&(amp|lt|gt|quot|#39|nbsp);/g, (_m, name: string) => entities[name] ?? _m);
+}
+
+/** The 5-whys and the cause marks are stored as JSON; the timeline says what they hold in words. */
+function summariseJson(field: string, value: string): string {
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(value);
+  } catch {
+    return value.length > 160 ? `${value.slice(0, 157)}…` : value;
+  }
+  if (field === 'fiveWhys' && Array.isArray(parsed)) {
+    const pairs = parsed as { why?: string; because?: string }[];
+    const last = pairs[pairs.length - 1];
+    return `${pairs.length} ${pairs.length === 1 ? 'why' : 'whys'}${last?.because ? `, last answer: ${last.because}` : ''}`;
+  }
+  if (field === 'causeAnalysis' && parsed && typeof parsed === 'object') {
+    const marks = [
+      ...(((parsed as { catalogue?: unknown[] }).catalogue ?? []) as { state?: string }[]),
+      ...(((parsed as { own?: unknown[] }).own ?? []) as { state?: string }[]),
+    ];
+    const count = (state: string) => marks.filter((m) => m.state === state).length;
+    return `${count('root_cause')} root cause, ${count('contributing')} contributing, ${count('ruled_out')} ruled out`;
+  }
+  return value.length > 160 ? `${value.slice(0, 157)}…` : value;
+}
+
 function show(rawField: string, value: unknown, names: Names): string {
   const field = baseField(rawField);
   if (value === null || value === undefined || value === '') return '(empty)';
@@ -79,8 +109,9 @@ function show(rawField: string, value: unknown, names: Names): string {
     if (field === 'classification') return classificationLabels[value as keyof typeof classificationLabels] ?? value;
     if (field === 'disposition' || field === 'recommendedDisposition') return dispositionLabels[value as keyof typeof dispositionLabels] ?? value;
     if (/^\d{4}-\d{2}-\d{2}T/.test(value)) return formatUtc(value, true);
+    if (field === 'fiveWhys' || field === 'causeAnalysis') return summariseJson(field, value);
     // Rich text reads as its words here; the full saved version stays in the audit trail itself.
-    const text = value.includes('<') ? value.replace(/<[^>]*>/g, ' ').replace(/\s+/g, ' ').trim() : value;
+    const text = value.includes('<') ? decodeEntities(value.replace(/<[^>]*>/g, ' ')).replace(/\s+/g, ' ').trim() : value;
     return text.length > 160 ? `${text.slice(0, 157)}…` : text;
   }
   if (field === 'attachment' && typeof value === 'object') {
