@@ -122,7 +122,7 @@ function FieldError({ id, errors }: { id: string; errors: string[] | undefined }
 function htmlToText(html: string): string {
   if (typeof DOMParser === 'undefined') return html;
   const doc = new DOMParser().parseFromString(
-    html.replace(/<li[^>]*>/gi, '<li>- ').replace(/<\/(p|h[1-6]|li|tr|blockquote|pre)>/gi, '</$1>\n').replace(/<\/t[dh]>/gi, '\t'),
+    html.replace(/<li[^>]*>/gi, '<li>- ').replace(/<\/(p|h[1-6]|tr|blockquote|pre)>/gi, '</$1>\n').replace(/<\/t[dh]>/gi, '\t'),
     'text/html',
   );
   return (doc.body.textContent ?? '').replace(/\n{3,}/g, '\n\n').trim();

@@ -17,5 +17,5 @@ export const proseClasses = [
   '[&_hr]:my-4 [&_hr]:border-ink-200',
   '[&_table]:my-3 [&_table]:w-full [&_table]:border-collapse [&_table]:text-left',
   '[&_th]:border [&_th]:border-ink-300 [&_th]:bg-ink-50 [&_th]:px-2 [&_th]:py-1 [&_th]:font-semibold [&_th]:align-top',
-  '[&_td]:border [&_td]:border-ink-300 [&_td]:px-2 [&_td]:py-1 [&_td]:align-top [&_td>p]:my-0 [&_th>p]:my-0',
+  '[&_td]:border [&_td]:border-ink-300 [&_td]:px-2 [&_td]:py-1 [&_td]:align-top [&_td>p]:my-0 [&_th>p]:my-0 [&_td>p]:min-h-[1.5em] [&_th>p]:min-h-[1.5em]',
 ].join(' ');
