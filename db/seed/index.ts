@@ -10,6 +10,7 @@ import { buildDemoScenario, scenarioStart, type DemoScenario } from './scenario'
 import { demoPassword } from './demo-users';
 import { seedClocks } from './clocks';
 import { seedDeviationDispositions } from './deviation-dispositions';
+import { seedCapas } from './capas';
 import { seedDeviations } from './deviations';
 import { seedRiskScales } from './risk';
 import { seedWeightChecks } from './weight';
@@ -167,6 +168,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
 
   await seedWeightChecks(tx, scenario);
   await seedDeviations(tx, scenario);
+  await seedCapas(tx, scenario);
   await seedDeviationDispositions(tx);
 }
 

@@ -105,7 +105,7 @@ export async function getCapaDetail(id: number, viewer: RecordActor, dbOrTx: DbO
   const [actionRows, source, recurrence, history, signatures, audit] = await Promise.all([
     dbOrTx.select().from(capaActions).where(eq(capaActions.capaId, row.id)).orderBy(asc(capaActions.round), asc(capaActions.id)),
     sourceOf(dbOrTx, row),
-    criterion ? computeRecurrence(dbOrTx, criterion, row.actionsCompletedAt, now) : Promise.resolve(null),
+    criterion ? computeRecurrence(dbOrTx, criterion, row.actionsCompletedAt, now, row.closedAt) : Promise.resolve(null),
     listStateHistory(dbOrTx, capaKind, row.id),
     listSignatures(dbOrTx, 'capa', row.id, capaSignedContent(row)),
     can(viewer, 'audit.read') ? listAuditTrail(dbOrTx, 'capa', row.id) : Promise.resolve(null),

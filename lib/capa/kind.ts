@@ -110,7 +110,8 @@ export const capaAuditFields = [
  * What a CAPA signature vouches for: the plan (problem, root cause, criteria, owner, which round of
  * the plan). Lifecycle times, counters and the outcome are left out so that completing the actions
  * does not make the plan approval read as "changed after signing" (21 CFR 11.70); the outcome is in
- * the meaning of the signature itself ("effective", "not effective").
+ * the meaning of the signature itself ("effective", "not effective"), and a reason (not effective,
+ * cancelled) is recorded with the signature that gives it.
  */
 export function capaSignedContent(row: CapaRow): Record<string, unknown> {
   return {
@@ -124,7 +125,6 @@ export function capaSignedContent(row: CapaRow): Record<string, unknown> {
     recurrenceCriterion: row.recurrenceCriterion,
     ownerId: row.ownerId,
     planRound: row.planRound,
-    cancelReason: row.cancelReason,
   };
 }
 

@@ -1,5 +1,5 @@
 import 'server-only';
-import { type SQL, and, count, eq, gt, gte, notInArray, or } from 'drizzle-orm';
+import { type SQL, and, count, eq, gt, gte, lt, lte, notInArray, or } from 'drizzle-orm';
 import type { DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, deviations, fillingRings, machines } from '../../db/schema';
 import {
@@ -31,12 +31,18 @@ export interface RecurrenceEvidence extends RecurrenceCounts {
   summary: string;
 }
 
+/**
+ * `until` ends the count: a closed CAPA shows the evidence as it stood when it was decided, not what
+ * happened afterwards (that belongs to a new deviation and, if needed, a new CAPA).
+ */
 export async function computeRecurrence(
   dbOrTx: DbOrTx,
   criterion: RecurrenceCriterion,
   since: Date | null,
   now: Date = new Date(),
+  until: Date | null = null,
 ): Promise<RecurrenceEvidence> {
+  const end = until !== null && until < now ? until : now;
   const [defect, machine, ring] = await Promise.all([
     criterion.defectId === undefined
       ? null
@@ -75,6 +81,7 @@ export async function computeRecurrence(
       // created_at leads the range on the index; occurred_at keeps out events from before the actions.
       gte(deviations.createdAt, since),
       gte(deviations.occurredAt, since),
+      lt(deviations.createdAt, end),
       notInArray(deviations.status, ['draft', 'cancelled']),
     ];
     // A batch counts from the day after the actions were completed: one made that day may have run before.
@@ -86,13 +93,13 @@ export async function computeRecurrence(
         : dbOrTx
             .select({ n: count() })
             .from(batches)
-            .where(and(place(batches.machineId, batches.ringId), gt(batches.manufacturedOn, sinceDay))),
+            .where(and(place(batches.machineId, batches.ringId), gt(batches.manufacturedOn, sinceDay), lte(batches.manufacturedOn, end.toISOString().slice(0, 10)))),
     ]);
     counts = {
       since: since.toISOString(),
       recurrences: deviationCount?.n ?? 0,
       batchesSince: batchCount?.n ?? 0,
-      daysSince: wholeDaysBetween(since.toISOString(), now),
+      daysSince: wholeDaysBetween(since.toISOString(), end),
     };
   }
 
