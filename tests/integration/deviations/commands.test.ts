@@ -16,7 +16,10 @@ import {
   submitForApproval,
   updateDraft,
 } from '@/lib/deviations/commands';
+import type { DeviationDto } from '@/lib/deviations/kind';
+import { saveInvestigation } from '@/lib/deviations/investigation';
 import { ConflictError, ForbiddenError, InvalidTransitionError, ValidationError } from '@/lib/errors';
+import type { RecordActor } from '@/lib/records/kind';
 import { makeUser, testPassword } from '../support/fixtures';
 
 /*
@@ -74,6 +77,20 @@ async function reportedDeviation() {
 }
 
 /** A deviation in approval: raised by an operator, triaged by one investigator, investigated by another. */
+/** The conclusions the "investigation complete" signature requires (lib/deviations/investigation.ts). */
+async function completeInvestigation(investigator: RecordActor, r: DeviationDto): Promise<DeviationDto> {
+  const saved = await saveInvestigation(investigator, {
+    id: r.id,
+    version: r.version,
+    investigationReport: '<p>Bodies broke at the pin plate; the bore on segment 3 was damaged.</p>',
+    rootCauseCategory: 'machine',
+    rootCause: 'Damaged body plate bore.',
+    productImpact: 'Broken bodies removed by 100 % inspection; fill weights within limits.',
+    capaRequired: false,
+  });
+  return saved.record;
+}
+
 async function deviationInApproval() {
   const { operator, batchId, record } = await reportedDeviation();
   const [triager, investigator, approver] = await Promise.all([
@@ -96,6 +113,7 @@ async function deviationInApproval() {
     })
   ).record;
   r = (await assignInvestigation(triager, { id: r.id, version: r.version })).record;
+  r = await completeInvestigation(investigator, r);
   const signed = await submitForApproval(investigator, { id: r.id, version: r.version, password: testPassword });
   return { operator, batchId, triager, investigator, approver, submitted: signed, record: signed.record };
 }
@@ -322,6 +340,7 @@ describe('approval and batch disposition', () => {
       })
     ).record;
     r = (await assignInvestigation(triager, { id: r.id, version: r.version })).record;
+    r = await completeInvestigation(investigator, r);
     r = (await submitForApproval(investigator, { id: r.id, version: r.version, password: testPassword })).record;
     r = (await returnForRework(approver, { id: r.id, version: r.version, reason: 'Extend the check to the second lot.' })).record;
     expect(r.status).toBe('investigation');
@@ -353,7 +372,18 @@ describe('approval and batch disposition', () => {
     const { batchId, record } = await reportedDeviation();
     const [triager, approver] = await Promise.all([makeUser('qa_investigator'), makeUser('qa_approver')]);
     let r = (await startTriage(triager, { id: record.id, version: record.version })).record;
-    r = (await recordTriage(triager, { id: r.id, version: r.version, classification: 'minor', severity: 2, occurrence: 2, detection: 3 })).record;
+    // The deviation names no defect, so the starting class is major (classificationWithoutDefect): minor needs a reason.
+    r = (
+      await recordTriage(triager, {
+        id: r.id,
+        version: r.version,
+        classification: 'minor',
+        severity: 2,
+        occurrence: 2,
+        detection: 3,
+        classificationReason: 'Cosmetic mark only; no effect on fill or shell integrity.',
+      })
+    ).record;
     const input = { id: r.id, version: r.version, reason: 'Cosmetic mark only; AQL re-check passed.', password: testPassword };
     await expect(closeMinor(approver, input)).rejects.toThrow(/Every held batch needs a disposition/);
     await db.update(deviationBatches).set({ disposition: 'release' }).where(eq(deviationBatches.deviationId, r.id));
