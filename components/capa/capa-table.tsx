@@ -255,9 +255,14 @@ export function CapaTable({ initialQuery, initialPage, owners }: { initialQuery:
             <p>Nothing matches these filters. Loosen or clear them to see more.</p>
           </Notice>
         ) : (
+          <>
+          <p id="capa-scroll-hint" className="mb-1 text-sm text-ink-600 xl:hidden">
+            <span aria-hidden="true">↔</span> On a narrow screen the table scrolls sideways to show every column.
+          </p>
           <div
             role="region"
             aria-labelledby="capa-table-caption"
+            aria-describedby="capa-scroll-hint"
             tabIndex={0}
             className="overflow-x-auto rounded-lg border border-ink-200 bg-white focus-visible:outline-2 focus-visible:outline-offset-2"
           >
@@ -315,6 +320,7 @@ export function CapaTable({ initialQuery, initialPage, owners }: { initialQuery:
               </tbody>
             </table>
           </div>
+          </>
         )}
       </div>
       {pageCount > 1 ? (

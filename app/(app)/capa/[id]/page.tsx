@@ -15,7 +15,7 @@ import { type CapaActionDto, type CapaDetailDto, type CapaPlanOptionsDto, getCap
 import { capaActionCategoryLabels, capaActionKindLabels, capaSourceLabels } from '@/lib/capa/labels';
 import { NotFoundError } from '@/lib/errors';
 import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
-import type { CapaEventType } from '@/workflows/capa';
+import { type CapaEventType, capaEvents } from '@/workflows/capa';
 import { askForPlanApproval, saveAction, saveCompletion, savePlan, submitCapaEvent } from './actions';
 
 export const metadata: Metadata = { title: 'CAPA' };
@@ -121,7 +121,7 @@ function RecurrenceLine({ detail }: { detail: CapaDetailDto }) {
       <StatusBadge tone={tone} label={label} />
       <p className="min-w-0 flex-1">
         <span className="font-semibold">Counted from Plumbline&apos;s records: </span>
-        {r.summary}.
+        {r.summary.endsWith('.') ? r.summary : `${r.summary}.`}
       </p>
     </div>
   );
@@ -373,7 +373,9 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
             </p>
           ) : (
             <div className="grid grid-cols-1 items-start gap-4 lg:grid-cols-2">
-              {detail.allowedEvents.map((event) => (
+              {[...detail.allowedEvents]
+                .sort((a, b) => capaEvents.indexOf(a.type) - capaEvents.indexOf(b.type))
+                .map((event) => (
                 <CapaEventForm key={`${event.type}-${c.version}`} {...formFor(detail, event, user.name)} />
               ))}
             </div>
