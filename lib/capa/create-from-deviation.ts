@@ -1,10 +1,9 @@
 import 'server-only';
 import { and, asc, eq } from 'drizzle-orm';
 import type { DbOrTx, Tx } from '../../db/client';
-import { capas, deviations, recordLinks, stateHistory } from '../../db/schema';
-import { diffFields, writeAudit } from '../audit';
+import { capas, deviations, recordLinks } from '../../db/schema';
 import type { RecordActor } from '../records/kind';
-import { allocateNumber } from '../records/numbers';
+import { insertCapa, raisedCapaRelation } from './commands';
 
 /*
  * An investigation that says a CAPA is needed raises one, in state "proposed", linked to the
@@ -14,9 +13,7 @@ import { allocateNumber } from '../records/numbers';
  * "no" afterwards leaves it for the CAPA owner to cancel with a reason.
  */
 
-export const raisedCapaRelation = 'raised_capa';
-
-const capaAuditFields = ['number', 'status', 'title', 'sourceType', 'sourceId', 'problemStatement', 'rootCause', 'ownerId', 'createdBy'] as const;
+export { raisedCapaRelation };
 
 export interface LinkedCapa {
   id: number;
@@ -50,57 +47,30 @@ function problemStatementOf(deviation: typeof deviations.$inferSelect): string {
 
 /**
  * Opens a proposed CAPA for the deviation unless it already raised one. Call inside the transaction
- * that saves the investigation, with the deviation row as saved. Returns the CAPA and whether it is new.
+ * that saves the investigation, with the deviation row as saved; run afterCommit once it commits.
+ * The CAPA goes through the CAPA's own insert path (number, history, audit, the owner's notice, the
+ * link back to the deviation).
  */
 export async function ensureCapaForDeviation(
   tx: Tx,
   actor: RecordActor,
   deviation: typeof deviations.$inferSelect,
-  now: Date = new Date(),
-): Promise<{ capa: LinkedCapa; created: boolean }> {
+): Promise<{ capa: LinkedCapa; created: boolean; afterCommit: () => Promise<void> }> {
   const existing = await listCapasRaisedBy(tx, deviation.id);
-  if (existing[0]) return { capa: existing[0], created: false };
-
-  const number = await allocateNumber(tx, 'capa', now.getUTCFullYear());
-  const values = {
-    number,
-    status: 'proposed' as const,
-    version: 1,
-    title: deviation.title,
-    sourceType: 'deviation' as const,
-    sourceId: deviation.id,
-    problemStatement: problemStatementOf(deviation),
-    rootCause: deviation.rootCause?.trim() || null,
-    ownerId: deviation.investigatorId ?? actor.id,
-    createdBy: actor.id,
-  };
-  const [inserted] = await tx.insert(capas).values(values).$returningId();
-  const id = inserted!.id;
-  await tx.insert(recordLinks).values({
-    fromType: 'deviation',
-    fromId: deviation.id,
-    toType: 'capa',
-    toId: id,
-    relation: raisedCapaRelation,
-    createdBy: actor.id,
-  });
-  await tx.insert(stateHistory).values({
-    recordType: 'capa',
-    recordId: id,
-    event: 'create',
-    fromState: null,
-    toState: 'proposed',
-    userId: actor.id,
-    comment: `Raised from deviation ${deviation.number ?? `#${deviation.id}`}`,
-    at: now,
-  });
-  await writeAudit(tx, {
-    actor: { id: actor.id, name: actor.name },
-    recordType: 'capa',
-    recordId: id,
-    action: 'create',
-    changes: diffFields(null, values, capaAuditFields),
-    reason: `The investigation of deviation ${deviation.number ?? `#${deviation.id}`} says a CAPA is needed.`,
-  });
-  return { capa: { id, number, status: 'proposed' }, created: true };
+  if (existing[0]) return { capa: existing[0], created: false, afterCommit: async () => {} };
+  const label = deviation.number ?? `#${deviation.id}`;
+  const { row, afterCommit } = await insertCapa(
+    tx,
+    actor,
+    {
+      title: deviation.title,
+      sourceType: 'deviation',
+      sourceId: deviation.id,
+      problemStatement: problemStatementOf(deviation),
+      rootCause: deviation.rootCause?.trim() || null,
+      ownerId: deviation.investigatorId ?? actor.id,
+    },
+    `The investigation of deviation ${label} says a CAPA is needed.`,
+  );
+  return { capa: { id: row.id, number: row.number, status: row.status }, created: true, afterCommit };
 }

@@ -173,7 +173,7 @@ export async function saveInvestigation(actor: RecordActor, raw: SaveInvestigati
   const report = input.investigationReport === undefined ? null : cleanRichTextForSaving(input.investigationReport);
   if (report && !report.ok) throw new ValidationError(report.message, { investigationReport: [report.message] });
 
-  return dbOrTx.transaction(async (tx) => {
+  const { outcome, afterCommit } = await dbOrTx.transaction(async (tx) => {
     const [before] = await tx.select().from(deviations).where(eq(deviations.id, input.id)).for('update');
     const scope = before ? ownerScope(deviationKind, before) : null;
     if (!before || !scope || !can(actor, 'deviation.read', scope) || (before.status === 'draft' && before.raisedBy !== actor.id)) {
@@ -231,6 +231,8 @@ export async function saveInvestigation(actor: RecordActor, raw: SaveInvestigati
         ...(capaCreated ? [{ field: 'raisedCapa', from: null, to: capaCreated.number }] : []),
       ],
     });
-    return { record: deviationKind.toDto(after!), capaCreated };
+    return { outcome: { record: deviationKind.toDto(after!), capaCreated }, afterCommit: capa?.afterCommit };
   });
+  await afterCommit?.();
+  return outcome;
 }
