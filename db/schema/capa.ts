@@ -88,5 +88,10 @@ export const capaActions = mysqlTable(
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
-  (t) => [index('capa_actions_capa_idx').on(t.capaId), index('capa_actions_owner_idx').on(t.ownerId, t.completedAt)],
+  (t) => [
+    index('capa_actions_capa_idx').on(t.capaId),
+    index('capa_actions_owner_idx').on(t.ownerId, t.completedAt),
+    // The reminder sweep reads open actions in due order (lib/reminders/run.ts).
+    index('capa_actions_open_due_idx').on(t.completedAt, t.dueAt),
+  ],
 );

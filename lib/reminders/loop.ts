@@ -1,8 +1,11 @@
+import { openDueEffectivenessChecks } from '../capa/effectiveness-due';
 import { runRemindersOnce } from './run';
 
 /*
- * Runs the reminder sweep beside the outbox worker: once at start, then every intervalMs. A sweep
- * that fails (database away) is logged and tried again at the next tick; sweeps never overlap.
+ * The worker's scheduled sweeps, beside the outbox: CAPA effectiveness checks whose period has run
+ * are opened (their reviewers are mailed), then due-soon and overdue reminders are queued. Once at
+ * start, then every intervalMs. A sweep that fails (database away) is logged and tried again at the
+ * next tick; sweeps never overlap.
  */
 
 export interface ReminderLoop {
@@ -16,7 +19,12 @@ export function startReminderLoop(opts: { intervalMs: number; log?: (line: strin
 
   const sweep = () => {
     if (running || stopped) return;
-    running = runRemindersOnce()
+    running = openDueEffectivenessChecks()
+      .then((sweep) => {
+        for (const o of sweep.opened) log(`effectiveness check opened: ${o.number}`);
+        for (const f of sweep.failed) log(`effectiveness check of ${f.number} not opened: ${f.message}`);
+      })
+      .then(() => runRemindersOnce())
       .then((r) => {
         if (r.queued > 0) log(`reminders: ${r.queued} queued (${r.examined} items due soon or overdue)`);
       })

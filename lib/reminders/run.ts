@@ -1,6 +1,6 @@
-import { and, asc, eq, gt, inArray, lte, or } from 'drizzle-orm';
+import { and, asc, eq, gt, inArray, isNull, lte, or } from 'drizzle-orm';
 import { db as defaultDb, type DbOrTx } from '../../db/client';
-import { deviations, users } from '../../db/schema';
+import { capaActions, capas, deviations, users } from '../../db/schema';
 import { addDays, isoDateOfInstant, todayIn } from '../clocks/dates';
 import { openDeviationStates } from '../deviations/kind';
 import { getEnv } from '../env';
@@ -76,7 +76,81 @@ const deviationSource: ReminderSource = async (database, horizon, after, limit) 
     }));
 };
 
-export const reminderSources: Record<string, ReminderSource> = { deviation: deviationSource };
+/** CAPAs still being planned or carried out, to their owner. */
+const openCapaStates = ['proposed', 'plan_approved', 'implementation'] as const;
+
+const capaSource: ReminderSource = async (database, horizon, after, limit) => {
+  const rows = await database
+    .select({ id: capas.id, number: capas.number, title: capas.title, dueAt: capas.dueAt, ownerId: users.id, ownerEmail: users.email })
+    .from(capas)
+    .innerJoin(users, and(eq(users.id, capas.ownerId), eq(users.active, true)))
+    .where(
+      and(
+        inArray(capas.status, [...openCapaStates]),
+        lte(capas.dueAt, horizon),
+        after ? or(gt(capas.dueAt, after.dueAt), and(eq(capas.dueAt, after.dueAt), gt(capas.id, after.id))) : undefined,
+      ),
+    )
+    .orderBy(asc(capas.dueAt), asc(capas.id))
+    .limit(limit);
+  return rows
+    .filter((r): r is typeof r & { dueAt: Date } => r.dueAt !== null)
+    .map((r) => ({
+      recordType: 'capa',
+      recordId: r.id,
+      cursorId: r.id,
+      itemKey: `capa:${r.id}`,
+      noun: 'CAPA',
+      number: r.number,
+      title: r.title,
+      dueAt: r.dueAt,
+      recipient: { id: r.ownerId, email: r.ownerEmail },
+      role: 'You receive this because you own this CAPA.',
+      path: `/capa/${r.id}`,
+    }));
+};
+
+/** Open actions of the current plan round of CAPAs being carried out, to the action's owner. */
+const capaActionSource: ReminderSource = async (database, horizon, after, limit) => {
+  const rows = await database
+    .select({
+      id: capaActions.id,
+      capaId: capas.id,
+      number: capas.number,
+      description: capaActions.description,
+      dueAt: capaActions.dueAt,
+      ownerId: users.id,
+      ownerEmail: users.email,
+    })
+    .from(capaActions)
+    .innerJoin(capas, and(eq(capas.id, capaActions.capaId), eq(capas.planRound, capaActions.round)))
+    .innerJoin(users, and(eq(users.id, capaActions.ownerId), eq(users.active, true)))
+    .where(
+      and(
+        isNull(capaActions.completedAt),
+        lte(capaActions.dueAt, horizon),
+        inArray(capas.status, ['plan_approved', 'implementation']),
+        after ? or(gt(capaActions.dueAt, after.dueAt), and(eq(capaActions.dueAt, after.dueAt), gt(capaActions.id, after.id))) : undefined,
+      ),
+    )
+    .orderBy(asc(capaActions.dueAt), asc(capaActions.id))
+    .limit(limit);
+  return rows.map((r) => ({
+    recordType: 'capa',
+    recordId: r.capaId,
+    cursorId: r.id,
+    itemKey: `capa_action:${r.id}`,
+    noun: 'CAPA action',
+    number: r.number,
+    title: r.description.length > 200 ? `${r.description.slice(0, 197)}…` : r.description,
+    dueAt: r.dueAt,
+    recipient: { id: r.ownerId, email: r.ownerEmail },
+    role: 'You receive this because this action of the CAPA is yours.',
+    path: `/capa/${r.capaId}`,
+  }));
+};
+
+export const reminderSources: Record<string, ReminderSource> = { deviation: deviationSource, capa: capaSource, capaAction: capaActionSource };
 
 export interface ReminderRunResult {
   examined: number;

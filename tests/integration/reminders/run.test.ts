@@ -2,9 +2,10 @@ import { randomBytes } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { describe, expect, it } from 'vitest';
 import { db } from '@/db/client';
-import { deviations, mailOutbox, users } from '@/db/schema';
+import { capaActions, capas, deviations, mailOutbox, stateHistory, users } from '@/db/schema';
+import { openDueEffectivenessChecks } from '@/lib/capa/effectiveness-due';
 import { runRemindersOnce } from '@/lib/reminders/run';
-import { makeUser } from '../support/fixtures';
+import { makeMachine, makeUser } from '../support/fixtures';
 
 /*
  * The reminder sweep against MariaDB: due-soon once per due date, overdue once per site day, however
@@ -81,5 +82,71 @@ describe('runRemindersOnce', () => {
     expect(
       await db.select().from(mailOutbox).where(and(eq(mailOutbox.toUserId, owner.id), eq(mailOutbox.template, 'reminder_overdue'))),
     ).toHaveLength(0);
+  });
+});
+
+async function makeCapa(ownerId: number, values: Partial<typeof capas.$inferInsert>) {
+  const [row] = await db
+    .insert(capas)
+    .values({
+      number: `IT-${randomBytes(5).toString('hex').toUpperCase()}`,
+      title: 'Replace the worn body plate',
+      sourceType: 'trend',
+      problemStatement: 'Broken bodies recur on filler 2.',
+      ownerId,
+      createdBy: ownerId,
+      ...values,
+    })
+    .$returningId();
+  return row!.id;
+}
+
+describe('CAPA reminders', () => {
+  it("reminds each action's owner of an open action of the current round, and the CAPA's owner of the CAPA", async () => {
+    const owner = await makeUser('qa_investigator');
+    const doer = await makeUser('operator');
+    const capaId = await makeCapa(owner.id, { status: 'implementation', planRound: 2, dueAt: new Date('2030-06-12T00:00:00Z') });
+    const base = { capaId, kind: 'corrective' as const, category: 'procedure', ownerId: doer.id, createdBy: owner.id };
+    await db.insert(capaActions).values([
+      { ...base, round: 2, description: 'Add a bore check to the changeover sheet', dueAt: new Date('2030-06-09T00:00:00Z') },
+      { ...base, round: 1, description: 'An action of the earlier round', dueAt: new Date('2030-06-01T00:00:00Z') },
+      { ...base, round: 2, description: 'Done already', dueAt: new Date('2030-06-01T00:00:00Z'), completedAt: new Date('2030-06-02T00:00:00Z') },
+    ]);
+    await runRemindersOnce({ now: new Date('2030-06-10T15:00:00Z') });
+    const toDoer = await mailFor(doer.id);
+    expect(toDoer.map((m) => m.template)).toEqual(['reminder_overdue']);
+    expect(toDoer[0]!.subject).toMatch(/^Overdue: CAPA action IT-/);
+    const toOwner = await mailFor(owner.id);
+    expect(toOwner.map((m) => m.template)).toEqual(['reminder_due_soon']);
+  });
+});
+
+describe('openDueEffectivenessChecks', () => {
+  it('opens the check once the criterion has run, in the owner\'s name with the reason, and mails the reviewers (ICH Q10 3.2.2; common practice)', async () => {
+    const owner = await makeUser('qa_investigator');
+    const machine = await makeMachine();
+    const completed = new Date('2030-07-01T12:00:00Z');
+    const capaId = await makeCapa(owner.id, {
+      status: 'implementation',
+      actionsPlanned: 1,
+      actionsOpen: 0,
+      actionsCompletedAt: completed,
+      recurrenceCriterion: JSON.stringify({ machineId: machine.id, days: 10 }),
+    });
+    expect((await openDueEffectivenessChecks({ now: new Date('2030-07-05T12:00:00Z') })).opened.map((o) => o.id)).not.toContain(capaId);
+    const sweep = await openDueEffectivenessChecks({ now: new Date('2030-07-12T12:00:00Z') });
+    expect(sweep.opened.map((o) => o.id)).toContain(capaId);
+    const [row] = await db.select().from(capas).where(eq(capas.id, capaId));
+    expect(row!.status).toBe('effectiveness_check');
+    const [history] = await db
+      .select()
+      .from(stateHistory)
+      .where(and(eq(stateHistory.recordType, 'capa'), eq(stateHistory.recordId, capaId)));
+    expect(history).toMatchObject({ event: 'open_effectiveness_check', userId: owner.id });
+    expect(history!.comment).toMatch(/^Opened by the system: the criterion's period has run/);
+    const reviewMail = await db.select().from(mailOutbox).where(and(eq(mailOutbox.recordType, 'capa'), eq(mailOutbox.recordId, capaId)));
+    expect(reviewMail.length).toBeGreaterThan(0);
+    // Running again changes nothing.
+    expect((await openDueEffectivenessChecks({ now: new Date('2030-07-13T12:00:00Z') })).opened.map((o) => o.id)).not.toContain(capaId);
   });
 });

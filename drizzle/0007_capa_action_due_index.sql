@@ -1,0 +1,1 @@
+CREATE INDEX `capa_actions_open_due_idx` ON `capa_actions` (`completed_at`,`due_at`);
