@@ -46,7 +46,11 @@ export interface TokenBinding {
  * Issues a token inside the caller's transaction (the one that writes the e-mail into the outbox).
  * Earlier unused links for the same reviewer, record and action are revoked: only the newest works.
  */
-export async function issueActionToken(tx: DbOrTx, binding: TokenBinding, now: Date = new Date()): Promise<{ token: string; expiresAt: Date }> {
+export async function issueActionToken(
+  tx: DbOrTx,
+  binding: TokenBinding,
+  now: Date = new Date(),
+): Promise<{ id: number; token: string; expiresAt: Date }> {
   const token = randomBytes(tokenBytes).toString('base64url');
   const days = await getLinkDays(tx);
   const expiresAt = new Date(now.getTime() + days * 86_400_000);
@@ -63,8 +67,8 @@ export async function issueActionToken(tx: DbOrTx, binding: TokenBinding, now: D
         isNull(actionTokens.revokedAt),
       ),
     );
-  await tx.insert(actionTokens).values({ ...binding, tokenHash: hashToken(token), expiresAt });
-  return { token, expiresAt };
+  const [inserted] = await tx.insert(actionTokens).values({ ...binding, tokenHash: hashToken(token), expiresAt }).$returningId();
+  return { id: inserted!.id, token, expiresAt };
 }
 
 export type TokenProblem = 'unknown' | 'used' | 'revoked' | 'expired' | 'other_user' | 'record_changed';

@@ -440,7 +440,16 @@ export async function openEffectivenessCheck(actor: RecordActor, raw: CapaVersio
   });
 }
 
-export async function recordEffective(actor: RecordActor, raw: SignedInput): Promise<CapaOutcome> {
+/**
+ * Work that must commit or roll back with the effectiveness signature: an e-mail review link spends
+ * its one-time token here (lib/capa/review-links.ts), so a used link never signs twice and a refused
+ * signature (wrong password, conflict) leaves the link usable.
+ */
+export interface SigningHooks {
+  inTransaction?: (tx: Tx) => Promise<void>;
+}
+
+export async function recordEffective(actor: RecordActor, raw: SignedInput, hooks: SigningHooks = {}): Promise<CapaOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(capaKind, {
     id: input.id,
@@ -448,7 +457,10 @@ export async function recordEffective(actor: RecordActor, raw: SignedInput): Pro
     event: 'record_effective',
     actor,
     password: input.password,
-    changes: (_row, { now }) => ({ effectivenessResult: 'effective', effectivenessNote: null, closedAt: now }),
+    changes: async (_row, { tx, now }) => {
+      await hooks.inTransaction?.(tx);
+      return { effectivenessResult: 'effective', effectivenessNote: null, closedAt: now };
+    },
   });
 }
 
@@ -456,7 +468,7 @@ export async function recordEffective(actor: RecordActor, raw: SignedInput): Pro
  * Not effective: back to planning for a new round of actions. The actions of this round stay on
  * record, completed as they were; the counters start again for the new round.
  */
-export async function recordNotEffective(actor: RecordActor, raw: SignedReasonInput): Promise<CapaOutcome> {
+export async function recordNotEffective(actor: RecordActor, raw: SignedReasonInput, hooks: SigningHooks = {}): Promise<CapaOutcome> {
   const input = parseInput(signedReasonSchema, raw);
   return transitionRecord(capaKind, {
     id: input.id,
@@ -465,17 +477,20 @@ export async function recordNotEffective(actor: RecordActor, raw: SignedReasonIn
     actor,
     reason: input.reason,
     password: input.password,
-    changes: (row) => ({
-      effectivenessResult: 'not_effective',
-      effectivenessNote: input.reason,
-      planRound: row.planRound + 1,
-      actionsPlanned: 0,
-      actionsOpen: 0,
-      actionsCompletedAt: null,
-      planApprovedAt: null,
-      effectivenessOpenedAt: null,
-      effectivenessDueAt: null,
-    }),
+    changes: async (row, { tx }) => {
+      await hooks.inTransaction?.(tx);
+      return {
+        effectivenessResult: 'not_effective',
+        effectivenessNote: input.reason,
+        planRound: row.planRound + 1,
+        actionsPlanned: 0,
+        actionsOpen: 0,
+        actionsCompletedAt: null,
+        planApprovedAt: null,
+        effectivenessOpenedAt: null,
+        effectivenessDueAt: null,
+      };
+    },
   });
 }
 

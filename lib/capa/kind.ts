@@ -9,6 +9,7 @@ import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
 import { type RecordActor, defineRecordKind } from '../records/kind';
 import { type CapaSource, capaEventLabels, capaStateLabels } from './labels';
+import { mailEffectivenessReviewLinks } from './review-links';
 
 /* CAPAs on the write path: their table, machine, permissions, signed content and mail. */
 
@@ -251,17 +252,8 @@ export const capaKind = defineRecordKind({
     },
     notifyEffectivenessReview: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await eligibleApprovers(tx, after), actor, after, {
-          key: 'capa-effectiveness',
-          template: 'capa_effectiveness_review',
-          subject: `CAPA ${after.number}: effectiveness check awaits your review`,
-          heading: `${after.number} awaits the effectiveness review`,
-          paragraphs: [
-            `Every action of ${after.number}: ${after.title} is completed, and ${actor.name} opened the effectiveness check.`,
-            'Compare the evidence with the criteria written in the plan, then sign it effective, or not effective with the reason.',
-          ],
-          footer: 'You receive this because you are a QA approver who does not own this CAPA.',
-        });
+        // A personal one-time review link per approver (lib/capa/review-links.ts), not a plain link.
+        await mailEffectivenessReviewLinks(tx, actor.name, after, await eligibleApprovers(tx, after));
       },
     },
     notifyClosed: {
