@@ -49,6 +49,8 @@ export interface RaiseFormProps {
   submit: (values: { id: number; version: number }) => Promise<ActionResult<{ id: number; number: string }>>;
   findLots: (term: string) => Promise<ActionResult<RaiseBatchOption[]>>;
   findHoldCandidates: (batchId: number) => Promise<ActionResult<RaiseBatchOption[]>>;
+  /** A new deviation started from elsewhere (a failed weight check); a draft kept on the tablet wins. */
+  prefill?: { batch: RaiseBatchOption | null; defectId: number | null; whatHappened: string } | null;
 }
 
 const storageKey = (id: number | null) => `plumbline.raise.${id ?? 'new'}`;
@@ -101,11 +103,25 @@ export function RaiseForm(props: RaiseFormProps) {
         if (kept.id || kept.lot || kept.defectId || kept.title || kept.whatHappened) {
           setForm({ ...emptyState(), ...kept });
           setRestored(true);
+          return;
         }
       } catch {
         window.localStorage.removeItem(storageKey(draft));
       }
     }
+    const p = props.prefill;
+    if (!draft && p) {
+      setForm((f) => ({
+        ...f,
+        ...(p.batch
+          ? { batch: p.batch, lot: p.batch.lotNumber, machineId: p.batch.machineId ? String(p.batch.machineId) : '', ringId: p.batch.ringId ? String(p.batch.ringId) : '' }
+          : {}),
+        ...(p.defectId ? { defectId: String(p.defectId) } : {}),
+        whatHappened: p.whatHappened,
+      }));
+    }
+    // Runs once on mount: the prefill is the page's first render, never a later change.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, []);
 
   useEffect(() => {

@@ -8,6 +8,7 @@ import type { WeightBatchDto } from '@/lib/weight-checks/types';
 import { type MassMode, type WeightMethod, defaultMethod, evaluateWeightCheck, methodLabels, weightMethods } from '@/lib/weight/evaluate';
 import { hintSource } from '@/lib/weight/hints';
 import { formatLineError, parseMasses } from '@/lib/weight/parse';
+import type { WeightEvaluation } from '@/lib/weight/evaluate';
 import { type WeightFormState, idleWeightFormState } from './form-state';
 import { MassChart } from './mass-chart';
 import { RuleList } from './rule-list';
@@ -254,12 +255,12 @@ export function WeightCheckForm({
         ) : null}
         {evaluation.verdict === 'fail' ? (
           <div className="flex flex-col gap-2 rounded-md border border-ink-300 bg-white p-4">
-            <button type="button" className={buttonClasses('secondary', 'self-start')} disabled aria-describedby="deviation-note">
+            <a href={raiseHref(batch.lotNumber, evaluation)} className={buttonClasses('secondary', 'self-start')} aria-describedby="deviation-note">
               Raise a deviation
-            </button>
+            </a>
             <p id="deviation-note" className="text-sm text-ink-700">
-              Deviations are not in Plumbline yet. Once they are, this will open a new deviation with batch {batch.lotNumber}, machine{' '}
-              {batch.machine?.assetTag ?? '(none)'} and these masses filled in. Until then, record the check and raise the deviation by your site&apos;s procedure.
+              Opens a new deviation for batch {batch.lotNumber} with the defect and the check&apos;s figures filled in. Record this check
+              too, so the deviation can refer to it.
             </p>
           </div>
         ) : null}
@@ -285,4 +286,20 @@ export function WeightCheckForm({
       )}
     </form>
   );
+}
+
+/** The raise form, filled from a failed check: the lot, light or heavy fill, and what the check found. */
+function raiseHref(lot: string, evaluation: WeightEvaluation): string {
+  const defect = evaluation.direction === 'heavy' ? 'heavy_fill' : evaluation.direction === 'light' ? 'light_fill' : '';
+  const failed = evaluation.rules.filter((r) => r.status === 'fail').map((r) => `${r.label} (${r.source}): ${r.detail}`);
+  const what = [
+    `A ${methodLabels[evaluation.method]} weight check on lot ${lot} failed.`,
+    `Average fill ${evaluation.summary.mean.toFixed(1)} mg; ${evaluation.outside.below} below and ${evaluation.outside.above} above the product limits.`,
+    ...failed,
+  ]
+    .join('\n')
+    .slice(0, 1800);
+  const params = new URLSearchParams({ lot, what });
+  if (defect) params.set('defect', defect);
+  return `/deviations/new?${params.toString()}`;
 }

@@ -137,13 +137,15 @@ describe('weight check of 20 capsules at the line', () => {
     expect(hintText).toMatch(/Caution: Change the dosing-shoe clearance only with the machine's power off and isolated/);
     expect(hintText).toContain('Common practice');
 
-    // Not yet wired to deviations: the button is there, disabled, and says what to do meanwhile.
-    const raise = page.getByRole('button', { name: 'Raise a deviation' });
-    expect(await raise.isDisabled()).toBe(true);
-    const note = await page.locator(`#${await raise.getAttribute('aria-describedby')}`).innerText();
-    expect(note).toContain(batch!.lotNumber);
-    expect(note).toContain(batch!.machineAssetTag);
-    expect(note).toMatch(/raise the deviation by your site's procedure/);
+    // 21 CFR 211.192: a failure is investigated. The link opens the raise form with the lot, the
+    // defect (light fill: the mean is below target) and what the check found.
+    const raise = page.getByRole('link', { name: 'Raise a deviation' });
+    const href = new URL((await raise.getAttribute('href'))!, 'http://x');
+    expect(href.pathname).toBe('/deviations/new');
+    expect(href.searchParams.get('lot')).toBe(batch!.lotNumber);
+    expect(href.searchParams.get('defect')).toBe('light_fill');
+    expect(href.searchParams.get('what')).toContain(`Average fill ${mean.toFixed(1)} mg`);
+    expect(href.searchParams.get('what')).toContain('Ph. Eur. 2.9.5');
     // A failing check is still a result and is recorded (21 CFR 211.192: failures are investigated, not discarded).
     expect(await page.getByRole('button', { name: 'Record check' }).isEnabled()).toBe(true);
     await screenshot(page, 'weight-check-fail');
