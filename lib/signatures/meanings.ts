@@ -14,6 +14,7 @@ export const signatureMeanings = [
   'investigation_complete',
   'effective',
   'not_effective',
+  'reportability_decided',
 ] as const;
 export type SignatureMeaning = (typeof signatureMeanings)[number];
 
@@ -28,6 +29,7 @@ export const signatureMeaningLabels: Record<SignatureMeaning, string> = {
   investigation_complete: 'Investigation complete',
   effective: 'Effective',
   not_effective: 'Not effective',
+  reportability_decided: 'Reportability decided',
 };
 
 /** The sentence the signer reads before entering the password. */
@@ -44,6 +46,8 @@ export const signatureMeaningStatements: Record<SignatureMeaning, string> = {
     'I have reviewed the evidence against the effectiveness criteria written in the plan; the actions achieved them.',
   not_effective:
     'I have reviewed the evidence against the effectiveness criteria written in the plan; the actions did not achieve them, for the reason I give.',
+  reportability_decided:
+    'I have assessed this complaint; its category, whether it is an adverse event and whether it is serious, and whether it must be reported to the regulator, are as recorded, for the reasons given.',
 };
 
 export function isSignatureMeaning(value: unknown): value is SignatureMeaning {

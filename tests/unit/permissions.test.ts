@@ -14,6 +14,10 @@ import { ForbiddenError } from '@/lib/errors';
  *   who does which step is common practice, not a rule of either.
  * - Access is restricted to what each role needs: Annex 11 §12.1. The administrator manages accounts
  *   and master data and takes no GMP decision (segregation of duties: common practice).
+ * - Complaints: anyone on site may take a complaint down for a caller (21 CFR 211.198(a): every written
+ *   or oral complaint is recorded); QA reviews, investigates, answers and reopens it (21 CFR 211.198(a),
+ *   21 CFR 111.560); the complainant's personal data is for QA alone (Annex 11 §12.1; data minimisation,
+ *   GDPR Art. 5(1)(c)); an operator sees only the complaints they entered.
  * - 'own' = only records the user raised, created or owns (drafts before submission, own CAPA actions).
  */
 
@@ -33,11 +37,13 @@ capa.plan                 -    -    any  -    -
 capa.complete_action      own  own  own  own  -
 capa.approve              -    -    -    any  -
 capa.cancel               -    -    any  any  -
-complaint.read            -    any  any  any  any
+complaint.read            own  any  any  any  any
 complaint.intake          any  any  any  any  -
 complaint.read_personal   -    -    any  any  -
 complaint.assess          -    -    any  -    -
 complaint.approve         -    -    -    any  -
+complaint.respond         -    -    any  any  -
+complaint.reopen          -    -    any  any  -
 batch.read                any  any  any  any  any
 equipment.read            any  any  any  any  any
 ring.quarantine           any  any  any  any  -

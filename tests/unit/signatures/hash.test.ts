@@ -92,6 +92,7 @@ describe('signature meanings', () => {
       'investigation_complete',
       'effective',
       'not_effective',
+      'reportability_decided',
     ]);
     for (const m of signatureMeanings) {
       expect(signatureMeaningLabels[m]).toBeTruthy();
