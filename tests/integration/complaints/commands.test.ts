@@ -22,6 +22,7 @@ import {
 } from '@/lib/complaints/commands';
 import { getComplaintDetail, hiddenValue } from '@/lib/complaints/detail';
 import { personalFields } from '@/lib/complaints/kind';
+import type { IntakeInput } from '@/lib/complaints/schemas';
 import { parseComplaintListQuery } from '@/lib/complaints/list-query';
 import { listComplaints } from '@/lib/complaints/queries';
 import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '@/lib/errors';
@@ -81,11 +82,11 @@ beforeAll(async () => {
   people = { operator, operator2, supervisor, admin, investigator, approver };
 });
 
-const intake = (overrides: Record<string, unknown> = {}) => ({
+const intake = (overrides: Record<string, unknown> = {}): IntakeInput => ({
   complainantName: 'Wendeline Quarrystone',
   complainantContact: 'w.quarrystone@customers.example',
-  complainantKind: 'consumer',
-  channel: 'phone',
+  complainantKind: 'consumer' as const,
+  channel: 'phone' as const,
   receivedOn: '2026-11-13',
   lot,
   description: 'Several capsules in the bottle were empty: no powder inside at all.',
