@@ -1,7 +1,7 @@
 import 'server-only';
 import { type SQL, and, asc, count, desc, eq, inArray, lt, notInArray } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { capas, deviations, users } from '../../db/schema';
+import { capas, complaints, deviations, users } from '../../db/schema';
 import type { CapaState } from '../../workflows/states';
 import { type Actor, assertCan } from '../auth/permissions';
 import type { CapaSource } from './labels';
@@ -134,4 +134,26 @@ export async function listCapaOwners(database: DbOrTx = db): Promise<CapaOwnerOp
     .innerJoin(users, eq(users.id, capas.ownerId))
     .orderBy(asc(users.name));
   return rows.map((r) => ({ id: r.id, label: r.name }));
+}
+
+/**
+ * The id of the deviation or complaint with this number, for opening a CAPA from it; null when there
+ * is none the viewer may read (a draft has no number, so it is never found).
+ */
+export async function findCapaSourceByNumber(
+  sourceType: 'deviation' | 'complaint',
+  number: string,
+  viewer: Actor,
+  database: DbOrTx = db,
+): Promise<number | null> {
+  // Only those who may open a CAPA look its source up (QA); they read every deviation and complaint.
+  assertCan(viewer, 'capa.create');
+  if (sourceType === 'deviation') {
+    assertCan(viewer, 'deviation.read');
+    const [row] = await database.select({ id: deviations.id }).from(deviations).where(eq(deviations.number, number));
+    return row?.id ?? null;
+  }
+  assertCan(viewer, 'complaint.read');
+  const [row] = await database.select({ id: complaints.id }).from(complaints).where(eq(complaints.number, number));
+  return row?.id ?? null;
 }
