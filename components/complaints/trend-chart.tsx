@@ -76,7 +76,11 @@ export function TrendChart({ months }: { months: TrendMonthDto[] }) {
                 />
               )}
               {m.upperLimit !== null ? (
-                <line x1={cx - band / 2 + 2} x2={cx + band / 2 - 2} y1={y(m.upperLimit)} y2={y(m.upperLimit)} stroke="#a4281d" strokeWidth="1.5" strokeDasharray="4 3" />
+                <g>
+                  {/* a white casing keeps the limit visible across a hatched red bar */}
+                  <line x1={cx - band / 2 + 2} x2={cx + band / 2 - 2} y1={y(m.upperLimit)} y2={y(m.upperLimit)} stroke="#ffffff" strokeWidth="4" />
+                  <line x1={cx - band / 2 + 2} x2={cx + band / 2 - 2} y1={y(m.upperLimit)} y2={y(m.upperLimit)} stroke="#a4281d" strokeWidth="2" strokeDasharray="4 3" />
+                </g>
               ) : null}
               {m.signal && m.ratePerMillion !== null ? (
                 <text x={cx} y={y(m.ratePerMillion) - 6} fontSize="11" fontWeight="bold" fill="#a4281d" textAnchor="middle">

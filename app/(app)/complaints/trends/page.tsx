@@ -69,19 +69,32 @@ export default async function ComplaintTrendsPage({ searchParams }: PageProps<'/
           21 CFR 111.560, EU GMP Chapter 8). A month above its limit or a repeat lot is a prompt to look for a common cause, not a finding.
         </Notice>
 
-        <form method="get" action="/complaints/trends" className="flex flex-wrap items-end gap-4 rounded-lg border border-ink-200 bg-white p-4" aria-label="Months to show">
-          <div className="w-48">
-            <TextField name="from" label="From month" type="month" placeholder="YYYY-MM" defaultValue={typed.from || range.from} errors={fieldErrors.from} />
+        <form method="get" action="/complaints/trends" className="flex flex-wrap items-start gap-4 rounded-lg border border-ink-200 bg-white p-4" aria-label="Months to show">
+          {(['from', 'to'] as const).map((name) => {
+            const errors = fieldErrors[name];
+            return (
+              <div key={name} className="w-52">
+                {/* A month input cannot show a value it does not understand, so a refused one comes back as text. */}
+                <TextField
+                  name={name}
+                  label={name === 'from' ? 'From month' : 'To month'}
+                  type={errors ? 'text' : 'month'}
+                  placeholder="YYYY-MM"
+                  hint="YYYY-MM"
+                  defaultValue={typed[name] || range[name]}
+                  errors={errors}
+                />
+              </div>
+            );
+          })}
+          <div className="flex basis-full flex-wrap gap-2">
+            <button type="submit" className={buttonClasses('primary')}>
+              Show these months
+            </button>
+            <Link href="/complaints/trends" className={buttonClasses('quiet')}>
+              Last 12 months
+            </Link>
           </div>
-          <div className="w-48">
-            <TextField name="to" label="To month" type="month" placeholder="YYYY-MM" defaultValue={typed.to || range.to} errors={fieldErrors.to} />
-          </div>
-          <button type="submit" className={buttonClasses('primary')}>
-            Show these months
-          </button>
-          <Link href="/complaints/trends" className={buttonClasses('quiet')}>
-            Last 12 months
-          </Link>
           <p className="basis-full text-sm text-ink-600">
             Up to {maxTrendMonths} months. Months follow the site’s calendar ({trends.timeZone}); today is {trends.today}.
           </p>
@@ -96,7 +109,7 @@ export default async function ComplaintTrendsPage({ searchParams }: PageProps<'/
           <h2 id="trend-summary" className="text-xl font-bold">
             Summary
           </h2>
-          <dl className="grid grid-cols-2 gap-3 lg:grid-cols-5">
+          <dl className="grid grid-cols-2 gap-3 sm:grid-cols-3 lg:grid-cols-5">
             <Figure label="Complaints received" value={count.format(totals.complaints)} />
             <Figure label="Units shipped" value={count.format(totals.units)} note={`${totals.lotsMade} lots made in these months`} />
             <Figure
