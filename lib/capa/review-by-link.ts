@@ -41,7 +41,7 @@ async function freshLinkVerdict(database: DbOrTx, viewer: RecordActor, capaId: n
   if (row.status !== 'effectiveness_check') {
     return {
       allowed: false,
-      why: `The CAPA is ${capaStateLabels[row.status].toLowerCase()} now, not awaiting an effectiveness review, so there is nothing to send a link for.`,
+      why: `Its state is now “${capaStateLabels[row.status]}”: it no longer awaits an effectiveness review, so there is nothing to send a link for.`,
     };
   }
   if (!can(viewer, 'capa.approve')) return { allowed: false, why: 'Only a QA approver reviews an effectiveness check; your role does not.' };

@@ -1,6 +1,5 @@
 'use server';
 
-import { revalidatePath } from 'next/cache';
 import { z } from 'zod';
 import type { ReviewDecision, ReviewFormState } from '@/components/capa/review-decision-forms';
 import type { FreshLinkState } from '@/components/capa/review-fresh-link';
@@ -25,8 +24,8 @@ export async function signReview(_previous: ReviewFormState, formData: FormData)
     return { failed: true, message: result.message, fieldErrors: result.fieldErrors, values, signed: null };
   }
   const { record } = result.data;
-  revalidatePath('/capa');
-  revalidatePath(`/capa/${record.id}`);
+  // No revalidatePath: it would re-render this page, whose link is now used, in place of the outcome.
+  // The CAPA pages read the database on every request, so nothing cached needs refreshing.
   const decision: ReviewDecision = record.effectivenessResult === 'effective' ? 'effective' : 'not_effective';
   return { failed: false, message: null, fieldErrors: {}, values: {}, signed: { decision, capaId: record.id, number: record.number } };
 }
