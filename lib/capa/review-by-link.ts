@@ -33,7 +33,7 @@ async function reviewedVersion(database: DbOrTx, binding: TokenBinding): Promise
 export type FreshLinkVerdict = { allowed: true } | { allowed: false; why: string };
 
 const noRecordWhy =
-  'This link does not say which CAPA it was for, so no fresh one can be sent from here. Open the CAPA list: the CAPAs awaiting an effectiveness review are marked there, and their owner can ask again.';
+  'This link does not say which CAPA it was for, so no fresh one can be sent from here. A QA approver can also review and sign a CAPA in the effectiveness check from its own page.';
 
 async function freshLinkVerdict(database: DbOrTx, viewer: RecordActor, capaId: number): Promise<FreshLinkVerdict> {
   const [row] = await database.select({ status: capas.status, ownerId: capas.ownerId }).from(capas).where(eq(capas.id, capaId));
