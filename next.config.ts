@@ -10,6 +10,8 @@ const nextConfig: NextConfig = {
   reactStrictMode: true,
   poweredByHeader: false,
   serverExternalPackages: ['mysql2', 'bcryptjs', 'minio', 'nodemailer'],
+  // Request paths can carry one-time approval tokens (/review/<token>): never write them to a log.
+  logging: { incomingRequests: false },
   experimental: {
     authInterrupts: true,
   },

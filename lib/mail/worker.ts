@@ -1,6 +1,7 @@
 import { and, asc, eq, inArray, lt, lte, or, sql } from 'drizzle-orm';
 import { db as defaultDb, type Db } from '../../db/client';
 import { mailAttempts, mailOutbox } from '../../db/schema';
+import { redactTokenLinks } from '../action-tokens/redact';
 import { createMailTransport, type MailTransport } from './transport';
 
 /*
@@ -179,7 +180,11 @@ export async function runOutboxOnce(opts: OutboxRunOptions): Promise<OutboxRunRe
 
     await database.transaction(async (tx) => {
       if (failure === null) {
-        await tx.update(mailOutbox).set({ status: 'sent', sentAt: now, lastError: null }).where(mine(mail.id));
+        // The sent copy keeps the text but not a one-time link's token (lib/action-tokens/redact.ts).
+        await tx
+          .update(mailOutbox)
+          .set({ status: 'sent', sentAt: now, lastError: null, textBody: redactTokenLinks(mail.textBody), htmlBody: redactTokenLinks(mail.htmlBody) })
+          .where(mine(mail.id));
         await tx.update(mailAttempts).set({ outcome: 'sent', finishedAt: now }).where(eq(mailAttempts.id, mail.attemptId));
         return;
       }
