@@ -1,21 +1,38 @@
 import type { Metadata } from 'next';
-import { PlannedWork } from '@/components/ui/planned-work';
+import Link from 'next/link';
+import { ComplaintTable } from '@/components/complaints/complaint-table';
+import { buttonClasses } from '@/components/ui/button';
+import { PageHeader } from '@/components/ui/page-header';
+import { can } from '@/lib/auth/permissions';
 import { requirePageUser } from '@/lib/auth/session';
+import { complaintListSearch, parseComplaintListQuery } from '@/lib/complaints/list-query';
+import { listCategoryOptions, listComplaints, listProductOptions } from '@/lib/complaints/queries';
 
 export const metadata: Metadata = { title: 'Complaints' };
 
-export default async function ComplaintsPage() {
-  await requirePageUser('complaint.read', { returnTo: '/complaints' });
+export default async function ComplaintsPage({ searchParams }: PageProps<'/complaints'>) {
+  const query = parseComplaintListQuery(await searchParams);
+  const search = complaintListSearch(query);
+  const user = await requirePageUser('complaint.read', { returnTo: search ? `/complaints?${search}` : '/complaints' });
+  const [firstPage, products, categories] = await Promise.all([listComplaints(query, user), listProductOptions(), listCategoryOptions()]);
   return (
-    <PlannedWork
-      title="Complaints"
-      summary="Customer complaints, from receipt to the answer the customer gets."
-      coming={[
-        'Logging a complaint with the batch concerned.',
-        'Assessment: category, whether it is an adverse event, reportability and its deadline.',
-        'Investigation with retained samples and links to deviations and CAPA.',
-        'The response to the customer, and closure.',
-      ]}
-    />
+    <>
+      <PageHeader
+        title="Complaints"
+        description={
+          user.role === 'operator'
+            ? 'The complaints you took down for callers. QA assesses, investigates and answers each one.'
+            : 'Customer complaints from receipt to the answer, with the report deadline where one runs. Newest first unless you sort otherwise.'
+        }
+        actions={
+          can(user, 'complaint.intake') ? (
+            <Link href="/complaints/new" className={buttonClasses('primary')}>
+              Take down a complaint
+            </Link>
+          ) : null
+        }
+      />
+      <ComplaintTable key={search} initialQuery={query} initialPage={firstPage} products={products} categories={[...categories.defects, ...categories.other]} />
+    </>
   );
 }
