@@ -1,13 +1,14 @@
 'use client';
 
-import { useActionState } from 'react';
+import dynamic from 'next/dynamic';
+import { useActionState, useId, useState } from 'react';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/notice';
 import { SubmitButton } from '@/components/ui/submit-button';
 import type { OptionDto } from '@/lib/capa/detail';
 import { capaActionCategoryLabels, capaActionKindLabels } from '@/lib/capa/labels';
 import { type CapaFormState, idleCapaFormState } from './form-state';
-import { OtherErrors, TextArea } from './form-bits';
+import { FieldError, OtherErrors, TextArea } from './form-bits';
 
 /* Adds an action to the plan, or changes one not yet completed (with actionId). */
 
@@ -87,6 +88,24 @@ export function ActionForm({
   );
 }
 
+function EditorLoading() {
+  return (
+    <div aria-busy="true" className="min-h-48 rounded-md border border-ink-400 bg-ink-50 px-3 py-2 text-ink-600">
+      Loading the editor…
+    </div>
+  );
+}
+
+const RichTextEditor = dynamic(() => import('@/components/rich-text/rich-text-editor').then((m) => m.RichTextEditor), {
+  ssr: false,
+  loading: EditorLoading,
+});
+
+/*
+ * The action owner's "done" with the evidence as rich text (what was done, where the proof is, a
+ * table of serials if needed). The HTML travels in the editor's hidden input; the server cleans it.
+ * Files go to the CAPA's Evidence section.
+ */
 export function CompleteActionForm({
   action,
   capaId,
@@ -99,22 +118,39 @@ export function CompleteActionForm({
   actionVersion: number;
 }) {
   const [state, formAction] = useActionState(action, idleCapaFormState);
+  const uid = useId();
+  const [evidence, setEvidence] = useState('');
+  const errors = state.fieldErrors.evidence;
+  const describedBy = [`${uid}-hint`, errors ? `${uid}-error` : null].filter(Boolean).join(' ');
   return (
     <form action={formAction} className="flex flex-col gap-3" noValidate>
       {state.failed && state.message ? <Notice tone="danger" title={state.message} /> : null}
       <input type="hidden" name="id" value={capaId} />
       <input type="hidden" name="actionId" value={actionId} />
       <input type="hidden" name="actionVersion" value={actionVersion} />
-      <TextArea
-        name="evidence"
-        label="Evidence of completion"
-        hint="What was done and where the proof is (procedure revision, training record, work order, ring serial)."
-        required
-        rows={3}
-        maxLength={10_000}
-        defaultValue={state.values.evidence ?? ''}
-        errors={state.fieldErrors.evidence}
-      />
+      <div className="flex flex-col gap-1">
+        <p className="flex flex-wrap items-baseline gap-x-1">
+          <span id={`${uid}-label`} className="font-semibold text-ink-900">
+            Evidence of completion
+          </span>
+          <span aria-hidden="true" className="text-ink-600">
+            (required)
+          </span>
+        </p>
+        <p id={`${uid}-hint`} className="text-sm text-ink-600">
+          What was done and where the proof is (procedure revision, training record, work order, ring serial). Attach files in the Evidence section
+          of this CAPA.
+        </p>
+        <RichTextEditor
+          name="evidence"
+          labelledBy={`${uid}-label`}
+          describedBy={describedBy}
+          initialHtml={state.values.evidence ?? evidence}
+          invalid={Boolean(errors)}
+          onChange={setEvidence}
+        />
+        <FieldError id={`${uid}-error`} errors={errors} />
+      </div>
       <OtherErrors fieldErrors={state.fieldErrors} shown={['evidence']} />
       <div>
         <SubmitButton pendingLabel="Recording…">Record as completed</SubmitButton>

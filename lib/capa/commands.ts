@@ -9,6 +9,7 @@ import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind'
 import { type WriteOutcome, insertRecord, transitionRecord } from '../records/write-path';
 import { parseInput } from '../validation/parse';
 import { type CapaRow, activeUsers, capaAuditFields, capaKind, eligibleApprovers, mailAboutCapa, planApprovalMail } from './kind';
+import { cleanEvidence } from './evidence-text';
 import { capaActionCategoryLabels, capaStateLabels } from './labels';
 import {
   type AddActionInput,
@@ -372,11 +373,15 @@ const dayMs = 86_400_000;
 
 /**
  * The action's owner records it as done, with the evidence (21 CFR 820.100(a)(7): activities and
- * their results documented). When it is the last open action of the plan, the CAPA notes the time:
- * the recurrence count and the effectiveness period start there.
+ * their results documented). The evidence is rich text, cleaned here before it is saved; the audit
+ * entry carries the whole saved text (21 CFR 11.10(e)). Files go to the CAPA's Evidence section
+ * (lib/attachments). When it is the last open action of the plan, the CAPA notes the time: the
+ * recurrence count and the effectiveness period start there.
  */
 export async function completeAction(actor: RecordActor, raw: CompleteActionInput): Promise<CapaOutcome> {
   const input = parseInput(completeActionSchema, raw);
+  const evidence = cleanEvidence(input.evidence);
+  if (!evidence.ok) throw new ValidationError(evidence.message, { evidence: [evidence.message] });
   const after = await db.transaction(async (tx) => {
     const before = await lockCapa(tx, actor, input.id, null, 'capa.read', ['implementation'], 'Completing an action');
     const action = await lockAction(tx, before, input.actionId);
@@ -386,7 +391,7 @@ export async function completeAction(actor: RecordActor, raw: CompleteActionInpu
     const now = new Date();
     const [result] = await tx
       .update(capaActions)
-      .set({ completedAt: now, completedBy: actor.id, evidence: input.evidence, version: action.version + 1 })
+      .set({ completedAt: now, completedBy: actor.id, evidence: evidence.html, version: action.version + 1 })
       .where(and(eq(capaActions.id, action.id), eq(capaActions.version, action.version)));
     if (result.affectedRows !== 1) throw new ConflictError();
     const [done] = await tx.select().from(capaActions).where(eq(capaActions.id, action.id));

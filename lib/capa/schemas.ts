@@ -167,11 +167,17 @@ export type AddActionInput = z.input<typeof addActionSchema>;
 export const updateActionSchema = z.object({ id, version, actionId: id, ...actionFields });
 export type UpdateActionInput = z.input<typeof updateActionSchema>;
 
+export const evidenceMissingMessage = 'Describe the evidence that the action was done (10 characters at least).';
+
+/**
+ * Evidence of completion is rich text (HTML from the editor; plain text from a JSON client is kept as
+ * it is). Only a ceiling here against absurd bodies: the command cleans it, then checks what is left.
+ */
 export const completeActionSchema = z.object({
   id,
   actionId: id,
   actionVersion: version,
-  evidence: requiredText(10, 10_000, 'Describe the evidence that the action was done (10 characters at least).', 'Keep the evidence under 10,000 characters; attach longer documents.'),
+  evidence: z.string({ error: evidenceMissingMessage }).max(1_000_000, 'The evidence is far too long; attach long documents as files.'),
 });
 export type CompleteActionInput = z.input<typeof completeActionSchema>;
 

@@ -6,12 +6,17 @@ import { CapaTimeline } from '@/components/capa/capa-timeline';
 import { CapaEventForm, type CapaEventFormProps } from '@/components/capa/event-form';
 import { PlanForm } from '@/components/capa/plan-form';
 import { CapaStatusBadge } from '@/components/capa/status-badge';
+import { EvidenceDropzone } from '@/components/evidence/evidence-dropzone';
+import { EvidenceList } from '@/components/evidence/evidence-list';
+import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
+import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
 import { requirePageUser } from '@/lib/auth/session';
 import { type CapaActionDto, type CapaDetailDto, type CapaPlanOptionsDto, getCapaDetail, getCapaPlanOptions } from '@/lib/capa/detail';
+import { evidenceAsHtml } from '@/lib/capa/evidence-text';
 import { capaActionCategoryLabels, capaActionKindLabels, capaSourceLabels } from '@/lib/capa/labels';
 import { NotFoundError } from '@/lib/errors';
 import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
@@ -151,8 +156,13 @@ function ActionCard({ a, detail, options }: { a: CapaActionDto; detail: CapaDeta
             {formatUtc(a.completedAt)} by {a.completedByName ?? 'unknown'}
           </Row>
         ) : null}
-        {a.evidence ? <Row label="Evidence">{<span className="whitespace-pre-line">{a.evidence}</span>}</Row> : null}
       </dl>
+      {a.evidence ? (
+        <div className="mt-2 text-sm">
+          <p className="text-ink-600">Evidence</p>
+          <RichTextView html={evidenceAsHtml(a.evidence)} label={`Evidence of action ${a.id}`} className="mt-1 rounded-md border border-ink-200 p-3" />
+        </div>
+      ) : null}
       {a.canComplete ? (
         <div className="mt-3 border-t border-ink-200 pt-3">
           <CompleteActionForm key={`complete-${a.id}-${a.version}`} action={saveCompletion} capaId={detail.capa.id} actionId={a.id} actionVersion={a.version} />
@@ -188,7 +198,11 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
     if (err instanceof NotFoundError) notFound();
     throw err;
   });
-  const options = detail.canPlan ? await getCapaPlanOptions() : null;
+  const [options, evidenceFiles, attachRefusal] = await Promise.all([
+    detail.canPlan ? getCapaPlanOptions() : null,
+    listAttachments('capa', id, user),
+    getAttachRefusal('capa', id, user),
+  ]);
   const { capa: c, source, criterion } = detail;
   const done = (await searchParams).done;
   const doneMessage = typeof done === 'string' && done in doneMessages ? doneMessages[done as keyof typeof doneMessages] : null;
@@ -358,6 +372,22 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
                 </ul>
               </details>
             ) : null}
+          </section>
+
+          <section id="evidence" aria-labelledby="evidence-heading" className="flex min-w-0 flex-col gap-4 rounded-lg border border-ink-200 bg-white p-5">
+            <h2 id="evidence-heading" className="text-lg font-semibold">
+              Evidence
+            </h2>
+            <EvidenceList items={evidenceFiles} />
+            {attachRefusal ? (
+              <p className="text-sm text-ink-600">{attachRefusal}</p>
+            ) : (
+              <EvidenceDropzone
+                uploadUrl={`/api/capa/${c.id}/attachments`}
+                refreshAfterUpload
+                hint="Procedure revisions, training records, work orders, photos. Each file is checked, given its SHA-256 and kept with this CAPA for good."
+              />
+            )}
           </section>
         </div>
 

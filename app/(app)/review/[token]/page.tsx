@@ -3,12 +3,16 @@ import Link from 'next/link';
 import { ReviewDecisionForms } from '@/components/capa/review-decision-forms';
 import { ReviewFreshLinkForm } from '@/components/capa/review-fresh-link';
 import { CapaStatusBadge } from '@/components/capa/status-badge';
+import { EvidenceList } from '@/components/evidence/evidence-list';
+import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
+import { listAttachments } from '@/lib/attachments/queries';
 import { requirePageUser } from '@/lib/auth/session';
 import type { CapaActionDto, CapaDetailDto } from '@/lib/capa/detail';
+import { evidenceAsHtml } from '@/lib/capa/evidence-text';
 import { capaActionCategoryLabels, capaActionKindLabels, capaSourceLabels } from '@/lib/capa/labels';
 import { type ReviewLinkView, openReviewLink } from '@/lib/capa/review-by-link';
 import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
@@ -91,8 +95,14 @@ function ActionItem({ a }: { a: CapaActionDto }) {
             {formatUtc(a.completedAt)} by {a.completedByName ?? 'unknown'}
           </Row>
         ) : null}
-        <Row label="Evidence">{a.evidence ? <span className="whitespace-pre-line">{a.evidence}</span> : 'None recorded'}</Row>
+        {a.evidence ? null : <Row label="Evidence">None recorded</Row>}
       </dl>
+      {a.evidence ? (
+        <div className="mt-2 text-sm">
+          <p className="text-ink-600">Evidence</p>
+          <RichTextView html={evidenceAsHtml(a.evidence)} label={`Evidence of action ${a.id}`} className="mt-1 rounded-md border border-ink-200 p-3" />
+        </div>
+      ) : null}
     </li>
   );
 }
@@ -122,6 +132,7 @@ export default async function ReviewPage({ params }: PageProps<'/review/[token]'
   const { detail, expiresAt } = view;
   const { capa: c, source } = detail;
   const current = detail.actions.filter((a) => a.round === c.planRound);
+  const evidenceFiles = await listAttachments('capa', c.id, user);
 
   return (
     <>
@@ -193,6 +204,10 @@ export default async function ReviewPage({ params }: PageProps<'/review/[token]'
               ))}
             </ul>
           )}
+          <h3 className="mt-5 font-semibold">Files attached to the CAPA</h3>
+          <div className="mt-2">
+            <EvidenceList items={evidenceFiles} />
+          </div>
         </section>
 
         <section aria-labelledby="review-criteria-heading" className="rounded-lg border border-ink-200 bg-white p-5">
