@@ -2,6 +2,7 @@ import { and, asc, eq, gt, inArray, isNull, lte, or } from 'drizzle-orm';
 import { db as defaultDb, type DbOrTx } from '../../db/client';
 import { capaActions, capas, deviations, users } from '../../db/schema';
 import { addDays, isoDateOfInstant, todayIn } from '../clocks/dates';
+import { complaintReportSource } from '../complaints/report-reminders';
 import { openDeviationStates } from '../deviations/kind';
 import { getEnv } from '../env';
 import { enqueueMail } from '../mail/outbox';
@@ -150,7 +151,12 @@ const capaActionSource: ReminderSource = async (database, horizon, after, limit)
   }));
 };
 
-export const reminderSources: Record<string, ReminderSource> = { deviation: deviationSource, capa: capaSource, capaAction: capaActionSource };
+export const reminderSources: Record<string, ReminderSource> = {
+  deviation: deviationSource,
+  capa: capaSource,
+  capaAction: capaActionSource,
+  complaintReport: complaintReportSource,
+};
 
 export interface ReminderRunResult {
   examined: number;
