@@ -11,6 +11,7 @@ import { demoPassword } from './demo-users';
 import { seedClocks } from './clocks';
 import { seedDeviationDispositions } from './deviation-dispositions';
 import { seedCapas } from './capas';
+import { seedComplaints } from './complaints';
 import { seedDeviations } from './deviations';
 import { seedRiskScales } from './risk';
 import { seedWeightChecks } from './weight';
@@ -170,6 +171,7 @@ async function loadScenario(tx: Tx, scenario: DemoScenario, passwordHash: string
   await seedDeviations(tx, scenario);
   await seedCapas(tx, scenario);
   await seedDeviationDispositions(tx);
+  await seedComplaints(tx);
 }
 
 if (process.argv[1] && fileURLToPath(import.meta.url) === path.resolve(process.argv[1])) {

@@ -46,13 +46,15 @@ export const intakeChannelLabels: Record<IntakeChannel, string> = {
 };
 
 /*
- * Categories beside the capsule defects of the catalogue (capsule_defects.code). Only "no defect
- * found" rules out a quality defect: a packaging, labelling, taste or odour complaint, or a suspected
- * reaction, may still come from the product (21 CFR 211.198(b)(2), EU GMP 8.9), so it is investigated.
+ * Categories beside the capsule defects of the catalogue (capsule_defects.code): what customers
+ * report that the filling-line catalogue does not name. Only "no defect found" rules out a quality
+ * defect: capsules stuck together, a packaging, labelling, taste or odour complaint, or a suspected
+ * reaction may still come from the product (21 CFR 211.198(b)(2), EU GMP 8.9), so it is investigated.
  */
-export const nonDefectCategories = ['packaging', 'labelling', 'taste_or_odour', 'suspected_adverse_reaction', 'no_defect_found'] as const;
+export const nonDefectCategories = ['stuck_together', 'packaging', 'labelling', 'taste_or_odour', 'suspected_adverse_reaction', 'no_defect_found'] as const;
 export type NonDefectCategory = (typeof nonDefectCategories)[number];
 export const nonDefectCategoryLabels: Record<NonDefectCategory, string> = {
+  stuck_together: 'Capsules stuck together',
   packaging: 'Packaging',
   labelling: 'Labelling',
   taste_or_odour: 'Taste or odour',

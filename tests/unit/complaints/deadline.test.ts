@@ -67,7 +67,7 @@ describe('the countdown shown on the record and in the list', () => {
 describe('which categories let the investigation be skipped (21 CFR 211.198(b)(2), EU GMP 8.9)', () => {
   it('leaves a defect possible for everything but "no defect found"', () => {
     expect(qualityDefectPossible('no_defect_found')).toBe(false);
-    for (const c of ['empty_capsule', 'packaging', 'labelling', 'taste_or_odour', 'suspected_adverse_reaction', null]) {
+    for (const c of ['empty_capsule', 'stuck_together', 'packaging', 'labelling', 'taste_or_odour', 'suspected_adverse_reaction', null]) {
       expect(qualityDefectPossible(c)).toBe(true);
     }
   });
