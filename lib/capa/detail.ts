@@ -92,7 +92,7 @@ async function sourceOf(dbOrTx: DbOrTx, row: typeof capas.$inferSelect): Promise
   }
   if (row.sourceType === 'complaint') {
     const [c] = await dbOrTx.select({ number: complaints.number }).from(complaints).where(eq(complaints.id, row.sourceId));
-    return c ? { ...base, number: c.number } : base;
+    return c ? { ...base, number: c.number, href: `/complaints/${row.sourceId}` } : base;
   }
   return base;
 }
