@@ -1,5 +1,5 @@
 import { randomBytes } from 'node:crypto';
-import { eq } from 'drizzle-orm';
+import { and, eq, ne, sql } from 'drizzle-orm';
 import { describe, expect, it } from 'vitest';
 import { db } from '@/db/client';
 import { mailOutbox } from '@/db/schema';
@@ -26,8 +26,9 @@ describe('a sent message with a one-time link', () => {
       html: `<a href="${link}">Open</a>`,
     });
     const delivered: string[] = [];
-    // Older queued messages go first; rounds continue until this one is sent (the rest are sent too, and ignored here).
-    for (let round = 0; round < 50; round++) {
+    // Older queued messages go first; rounds continue until this one is sent (the rest are sent too,
+    // and ignored here). Should anything else have tried it and failed, it is made due again.
+    for (let round = 0; round < 100; round++) {
       await runOutboxOnce({
         workerId: `it-redact-${process.pid}`,
         batchSize: 50,
@@ -35,10 +36,14 @@ describe('a sent message with a one-time link', () => {
       });
       const [state] = await db.select({ status: mailOutbox.status }).from(mailOutbox).where(eq(mailOutbox.dedupeKey, key));
       if (state?.status === 'sent') break;
+      await db
+        .update(mailOutbox)
+        .set({ status: 'pending', claimedBy: null, nextAttemptAt: sql`UTC_TIMESTAMP(3) - INTERVAL 1 SECOND` })
+        .where(and(eq(mailOutbox.dedupeKey, key), ne(mailOutbox.status, 'sent')));
     }
-    expect(delivered.some((d) => d.includes(token))).toBe(true);
     const [row] = await db.select().from(mailOutbox).where(eq(mailOutbox.dedupeKey, key));
-    expect(row!.status).toBe('sent');
+    expect({ status: row!.status, attempts: row!.attempts, lastError: row!.lastError }).toMatchObject({ status: 'sent' });
+    expect(delivered.some((d) => d.includes(token))).toBe(true);
     expect(row!.textBody).not.toContain(token);
     expect(row!.htmlBody).not.toContain(token);
     expect(row!.textBody).toContain(`/review/${redactedTokenText}`);
