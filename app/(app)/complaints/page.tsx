@@ -7,6 +7,7 @@ import { can } from '@/lib/auth/permissions';
 import { requirePageUser } from '@/lib/auth/session';
 import { complaintListSearch, parseComplaintListQuery } from '@/lib/complaints/list-query';
 import { listCategoryOptions, listComplaints, listProductOptions } from '@/lib/complaints/queries';
+import { canReadTrends } from '@/lib/complaints/trending';
 
 export const metadata: Metadata = { title: 'Complaints' };
 
@@ -25,11 +26,18 @@ export default async function ComplaintsPage({ searchParams }: PageProps<'/compl
             : 'Customer complaints from receipt to the answer, with the report deadline where one runs. Newest first unless you sort otherwise.'
         }
         actions={
-          can(user, 'complaint.intake') ? (
-            <Link href="/complaints/new" className={buttonClasses('primary')}>
-              Take down a complaint
-            </Link>
-          ) : null
+          <>
+            {canReadTrends(user) ? (
+              <Link href="/complaints/trends" className="inline-flex min-h-11 items-center font-semibold underline underline-offset-4">
+                Trends
+              </Link>
+            ) : null}
+            {can(user, 'complaint.intake') ? (
+              <Link href="/complaints/new" className={buttonClasses('primary')}>
+                Take down a complaint
+              </Link>
+            ) : null}
+          </>
         }
       />
       <ComplaintTable key={search} initialQuery={query} initialPage={firstPage} products={products} categories={[...categories.defects, ...categories.other]} />
