@@ -8,7 +8,7 @@ import { SubmitButton } from '@/components/ui/submit-button';
 import type { OptionDto } from '@/lib/capa/detail';
 import { capaActionCategoryLabels, capaActionKindLabels } from '@/lib/capa/labels';
 import { type CapaFormState, idleCapaFormState } from './form-state';
-import { FieldError, OtherErrors, TextArea } from './form-bits';
+import { FieldError, OtherErrors, TextArea } from '@/components/ui/form-bits';
 
 /* Adds an action to the plan, or changes one not yet completed (with actionId). */
 

@@ -1,74 +1,9 @@
-'use client';
+import { RecordEventForm, type RecordEventFormProps } from '@/components/records/record-event-form';
 
-import { useActionState, useId } from 'react';
-import { Notice } from '@/components/ui/notice';
-import { SignatureBlock } from '@/components/ui/signature-block';
-import { SubmitButton } from '@/components/ui/submit-button';
-import { type CapaFormState, idleCapaFormState } from './form-state';
-import { OtherErrors, TextArea } from './form-bits';
+/* A CAPA lifecycle action: the shared record event form (reason, signature block, errors beside fields). */
 
-/*
- * One lifecycle action on a CAPA: the reason when the transition asks for one and, when it is signed,
- * the signature block with the printed name and meaning before the password (21 CFR 11.50(a),
- * 11.200(a)). Errors sit beside their fields; a typed reason survives a failure.
- */
+export type CapaEventFormProps = Omit<RecordEventFormProps, 'recordId'> & { capaId: number };
 
-export interface CapaEventFormProps {
-  action: (previous: CapaFormState, formData: FormData) => Promise<CapaFormState>;
-  capaId: number;
-  version: number;
-  event: string;
-  heading: string;
-  description: string;
-  submitLabel: string;
-  pendingLabel: string;
-  danger?: boolean;
-  reason?: { label: string; hint: string };
-  signature?: { meaningLabel: string; statement: string; signerName: string };
-}
-
-export function CapaEventForm(props: CapaEventFormProps) {
-  const [state, formAction] = useActionState(props.action, idleCapaFormState);
-  const uid = useId();
-  return (
-    <section aria-labelledby={`${uid}-heading`} className="rounded-lg border border-ink-200 bg-white p-5">
-      <h3 id={`${uid}-heading`} className="text-lg font-semibold">
-        {props.heading}
-      </h3>
-      <p className="mt-1 text-ink-600">{props.description}</p>
-      <form action={formAction} className="mt-4 flex flex-col gap-4" noValidate>
-        {state.failed && state.message ? <Notice tone="danger" title={state.message} /> : null}
-        <input type="hidden" name="id" value={props.capaId} />
-        <input type="hidden" name="version" value={props.version} />
-        <input type="hidden" name="event" value={props.event} />
-        {props.reason ? (
-          <TextArea
-            name="reason"
-            label={props.reason.label}
-            hint={props.reason.hint}
-            required
-            rows={3}
-            maxLength={2000}
-            defaultValue={state.values.reason ?? ''}
-            errors={state.fieldErrors.reason}
-          />
-        ) : null}
-        {props.signature ? (
-          <SignatureBlock
-            id={uid}
-            meaningLabel={props.signature.meaningLabel}
-            statement={props.signature.statement}
-            signerName={props.signature.signerName}
-            errors={state.fieldErrors.password}
-          />
-        ) : null}
-        <OtherErrors fieldErrors={state.fieldErrors} shown={['reason', 'password']} />
-        <div>
-          <SubmitButton pendingLabel={props.pendingLabel} variant={props.danger ? 'danger' : 'primary'}>
-            {props.submitLabel}
-          </SubmitButton>
-        </div>
-      </form>
-    </section>
-  );
+export function CapaEventForm({ capaId, ...props }: CapaEventFormProps) {
+  return <RecordEventForm recordId={capaId} {...props} />;
 }

@@ -4,7 +4,7 @@ import { useActionState } from 'react';
 import { SelectField, TextField } from '@/components/ui/field';
 import { Notice } from '@/components/ui/notice';
 import { SubmitButton } from '@/components/ui/submit-button';
-import { TextArea } from './form-bits';
+import { TextArea } from '@/components/ui/form-bits';
 import { type CapaFormState, idleCapaFormState } from './form-state';
 
 /*

@@ -6,7 +6,7 @@ import { Notice } from '@/components/ui/notice';
 import { SubmitButton } from '@/components/ui/submit-button';
 import type { CapaPlanOptionsDto } from '@/lib/capa/detail';
 import { type CapaFormState, idleCapaFormState } from './form-state';
-import { OtherErrors, TextArea } from './form-bits';
+import { OtherErrors, TextArea } from '@/components/ui/form-bits';
 
 /*
  * The plan while the CAPA is being planned: problem, root cause, owner, due date and the effectiveness

@@ -5,7 +5,7 @@ import { useActionState, useId } from 'react';
 import { Notice } from '@/components/ui/notice';
 import { SignatureBlock } from '@/components/ui/signature-block';
 import { SubmitButton } from '@/components/ui/submit-button';
-import { OtherErrors, TextArea } from './form-bits';
+import { OtherErrors, TextArea } from '@/components/ui/form-bits';
 
 /*
  * The two decisions an effectiveness review link offers: "effective", and "not effective, because …".

@@ -1,7 +1,7 @@
 'use client';
 
 import { useActionState, useId, useState } from 'react';
-import { FieldError, OtherErrors, TextArea } from '@/components/capa/form-bits';
+import { FieldError, OtherErrors, TextArea } from '@/components/ui/form-bits';
 import { Notice } from '@/components/ui/notice';
 import { SubmitButton } from '@/components/ui/submit-button';
 import { reportDueOn } from '@/lib/complaints/deadline';

@@ -2,7 +2,7 @@
 
 import dynamic from 'next/dynamic';
 import { useActionState, useId, useState } from 'react';
-import { FieldError } from '@/components/capa/form-bits';
+import { FieldError } from '@/components/ui/form-bits';
 import { Notice } from '@/components/ui/notice';
 import { SubmitButton } from '@/components/ui/submit-button';
 import { type ComplaintFormAction, idleComplaintFormState } from './form-state';

@@ -2,7 +2,7 @@
 
 import { useId } from 'react';
 
-/* Small pieces the CAPA forms share: a labelled text area and an error line tied to its field. */
+/* Small pieces the record forms share: a labelled text area and an error line tied to its field. */
 
 export function FieldError({ id, errors }: { id: string; errors: readonly string[] | undefined }) {
   if (!errors || errors.length === 0) return null;
