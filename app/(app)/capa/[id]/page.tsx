@@ -11,6 +11,8 @@ import { EvidenceList } from '@/components/evidence/evidence-list';
 import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { eventFormProps, type EventFormText } from '@/components/records/event-form-text';
+import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
 import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
@@ -19,7 +21,6 @@ import { type CapaActionDto, type CapaDetailDto, type CapaPlanOptionsDto, getCap
 import { evidenceAsHtml } from '@/lib/capa/evidence-text';
 import { capaActionCategoryLabels, capaActionKindLabels, capaSourceLabels } from '@/lib/capa/labels';
 import { NotFoundError } from '@/lib/errors';
-import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
 import { type CapaEventType, capaEvents } from '@/workflows/capa';
 import { askForPlanApproval, saveAction, saveCompletion, savePlan, submitCapaEvent } from './actions';
 
@@ -39,9 +40,7 @@ const doneMessages: Record<CapaEventType | 'plan' | 'action_added' | 'action_upd
   cancel: 'The CAPA is cancelled. Your signature is recorded.',
 };
 
-type FormText = Pick<CapaEventFormProps, 'heading' | 'description' | 'submitLabel' | 'pendingLabel' | 'danger'> & { reasonLabel?: string; reasonHint?: string };
-
-const formTexts: Record<CapaEventType, FormText> = {
+const formTexts: Record<CapaEventType, EventFormText> = {
   approve_plan: {
     heading: 'Approve the plan',
     description: 'Your signature approves the actions, their owners and due dates, and the effectiveness criteria as written.',
@@ -87,34 +86,17 @@ const formTexts: Record<CapaEventType, FormText> = {
 };
 
 function formFor(detail: CapaDetailDto, event: CapaDetailDto['allowedEvents'][number], signerName: string): CapaEventFormProps {
-  const t = formTexts[event.type];
   return {
     action: submitCapaEvent,
     capaId: detail.capa.id,
     version: detail.capa.version,
     event: event.type,
-    heading: t.heading,
-    description: t.description,
-    submitLabel: t.submitLabel,
-    pendingLabel: t.pendingLabel,
-    danger: t.danger,
-    reason: event.reasonRequired ? { label: t.reasonLabel ?? 'Reason', hint: t.reasonHint ?? 'Recorded with your name and the time.' } : undefined,
-    signature: event.signature
-      ? { meaningLabel: signatureMeaningLabels[event.signature], statement: signatureMeaningStatements[event.signature], signerName }
-      : undefined,
+    ...eventFormProps(formTexts[event.type], event, signerName),
   };
 }
 
 const dateOnly = (iso: string | null) => (iso ? iso.slice(0, 10) : null);
 
-function Row({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-600">{label}</dt>
-      <dd className="min-w-0 break-words">{children}</dd>
-    </>
-  );
-}
 
 function RecurrenceLine({ detail }: { detail: CapaDetailDto }) {
   const r = detail.recurrence;
@@ -149,12 +131,12 @@ function ActionCard({ a, detail, options }: { a: CapaActionDto; detail: CapaDeta
       </div>
       <p className="mt-2 whitespace-pre-line">{a.description}</p>
       <dl className="mt-2 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">
-        <Row label="Owner">{a.ownerName}</Row>
-        <Row label="Due">{dateOnly(a.dueAt)}</Row>
+        <DetailRow label="Owner">{a.ownerName}</DetailRow>
+        <DetailRow label="Due">{dateOnly(a.dueAt)}</DetailRow>
         {a.completedAt ? (
-          <Row label="Completed">
+          <DetailRow label="Completed">
             {formatUtc(a.completedAt)} by {a.completedByName ?? 'unknown'}
-          </Row>
+          </DetailRow>
         ) : null}
       </dl>
       {a.evidence ? (
@@ -273,19 +255,19 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
               Plan
             </h2>
             <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
-              <Row label="Problem">
+              <DetailRow label="Problem">
                 <span className="whitespace-pre-line">{c.problemStatement}</span>
-              </Row>
-              <Row label="Root cause">{c.rootCause ? <span className="whitespace-pre-line">{c.rootCause}</span> : 'Not written yet'}</Row>
-              {source.title ? <Row label="Source record">{source.title}</Row> : null}
-              <Row label="Opened">
+              </DetailRow>
+              <DetailRow label="Root cause">{c.rootCause ? <span className="whitespace-pre-line">{c.rootCause}</span> : 'Not written yet'}</DetailRow>
+              {source.title ? <DetailRow label="Source record">{source.title}</DetailRow> : null}
+              <DetailRow label="Opened">
                 {formatUtc(c.createdAt)} by {detail.createdByName}
-              </Row>
-              {c.planApprovedAt ? <Row label="Plan approved">{formatUtc(c.planApprovedAt)}</Row> : null}
-              {c.actionsCompletedAt ? <Row label="Actions completed">{formatUtc(c.actionsCompletedAt)}</Row> : null}
-              {c.effectivenessDueAt ? <Row label="Check due">{dateOnly(c.effectivenessDueAt)}</Row> : null}
-              {c.closedAt ? <Row label={c.status === 'cancelled' ? 'Cancelled' : 'Closed'}>{formatUtc(c.closedAt)}</Row> : null}
-              {c.cancelReason ? <Row label="Why cancelled">{c.cancelReason}</Row> : null}
+              </DetailRow>
+              {c.planApprovedAt ? <DetailRow label="Plan approved">{formatUtc(c.planApprovedAt)}</DetailRow> : null}
+              {c.actionsCompletedAt ? <DetailRow label="Actions completed">{formatUtc(c.actionsCompletedAt)}</DetailRow> : null}
+              {c.effectivenessDueAt ? <DetailRow label="Check due">{dateOnly(c.effectivenessDueAt)}</DetailRow> : null}
+              {c.closedAt ? <DetailRow label={c.status === 'cancelled' ? 'Cancelled' : 'Closed'}>{formatUtc(c.closedAt)}</DetailRow> : null}
+              {c.cancelReason ? <DetailRow label="Why cancelled">{c.cancelReason}</DetailRow> : null}
             </dl>
             <h3 className="mt-5 font-semibold">Effectiveness criteria</h3>
             {c.effectivenessCriteria ? (

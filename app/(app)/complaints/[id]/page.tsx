@@ -14,6 +14,8 @@ import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { buttonClasses } from '@/components/ui/button';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { eventFormProps, type EventFormText } from '@/components/records/event-form-text';
+import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
 import { listAttachments } from '@/lib/attachments/queries';
@@ -30,7 +32,6 @@ import {
 import { isEmailAddress } from '@/lib/complaints/letter';
 import { listCategoryOptions } from '@/lib/complaints/queries';
 import { NotFoundError } from '@/lib/errors';
-import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
 import { getSiteTimeZone } from '@/lib/site-calendar/queries';
 import { type ComplaintEventType, complaintEvents } from '@/workflows/complaint';
 import {
@@ -66,9 +67,7 @@ const doneMessages: Record<string, string> = {
   reopen_investigation: 'The complaint is reopened for investigation.',
 };
 
-type FormText = Pick<ComplaintEventFormProps, 'heading' | 'description' | 'submitLabel' | 'pendingLabel' | 'danger'> & { reasonLabel?: string; reasonHint?: string };
-
-const formTexts: Record<ComplaintEventType, FormText> = {
+const formTexts: Record<ComplaintEventType, EventFormText> = {
   start_assessment: {
     heading: 'Start the assessment',
     description: 'You take the complaint on as its owner and decide whether it is an adverse event and must be reported.',
@@ -122,32 +121,15 @@ const formTexts: Record<ComplaintEventType, FormText> = {
 };
 
 function formFor(detail: ComplaintDetailDto, event: ComplaintDetailDto['allowedEvents'][number], signerName: string): ComplaintEventFormProps {
-  const t = formTexts[event.type];
   return {
     action: submitComplaintEvent,
     complaintId: detail.complaint.id,
     version: detail.complaint.version,
     event: event.type,
-    heading: t.heading,
-    description: t.description,
-    submitLabel: t.submitLabel,
-    pendingLabel: t.pendingLabel,
-    danger: t.danger,
-    reason: event.reasonRequired ? { label: t.reasonLabel ?? 'Reason', hint: t.reasonHint ?? 'Recorded with your name and the time.' } : undefined,
-    signature: event.signature
-      ? { meaningLabel: signatureMeaningLabels[event.signature], statement: signatureMeaningStatements[event.signature], signerName }
-      : undefined,
+    ...eventFormProps(formTexts[event.type], event, signerName),
   };
 }
 
-function Row({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-600">{label}</dt>
-      <dd className="min-w-0 break-words">{children}</dd>
-    </>
-  );
-}
 
 function Section({ id, title, children, testId }: { id: string; title: string; children: React.ReactNode; testId?: string }) {
   return (
@@ -246,39 +228,39 @@ export default async function ComplaintDetailPage({ params, searchParams }: Page
         <div className="flex min-w-0 flex-col gap-6 xl:col-start-1 xl:row-start-1">
           <Section id="intake" title="What was received" testId="intake-section">
             <dl className={dl}>
-              <Row label="Received">
+              <DetailRow label="Received">
                 {c.receivedOn} by {intakeChannelLabels[c.channel] ?? c.channel}, taken down by {detail.createdByName}
-              </Row>
-              <Row label="From">{complainantKindLabels[c.complainantKind] ?? c.complainantKind}</Row>
+              </DetailRow>
+              <DetailRow label="From">{complainantKindLabels[c.complainantKind] ?? c.complainantKind}</DetailRow>
               {detail.personal ? (
                 <>
-                  <Row label="Name">{detail.personal.complainantName}</Row>
-                  <Row label="Contact">{detail.personal.complainantContact}</Row>
+                  <DetailRow label="Name">{detail.personal.complainantName}</DetailRow>
+                  <DetailRow label="Contact">{detail.personal.complainantContact}</DetailRow>
                 </>
               ) : (
-                <Row label="Name and contact">
+                <DetailRow label="Name and contact">
                   <span className="text-ink-600">Visible to QA only.</span>
-                </Row>
+                </DetailRow>
               )}
-              <Row label="Product">{detail.product ? `${productLabel} (${detail.product.code}, ${detail.product.regulatoryClass === 'drug' ? 'drug' : 'dietary supplement'})` : 'Not known'}</Row>
-              <Row label="Lot">
+              <DetailRow label="Product">{detail.product ? `${productLabel} (${detail.product.code}, ${detail.product.regulatoryClass === 'drug' ? 'drug' : 'dietary supplement'})` : 'Not known'}</DetailRow>
+              <DetailRow label="Lot">
                 <span className="inline-flex flex-wrap items-center gap-2">
                   {lot ?? 'Not given'}
                   {c.lotUnknown ? <StatusBadge tone="warn" label={lot ? 'Not in the batch records' : 'Lot unknown'} /> : null}
                 </span>
-              </Row>
+              </DetailRow>
               {detail.batch ? (
-                <Row label="Batch record">
+                <DetailRow label="Batch record">
                   Made {detail.batch.manufacturedOn}
                   {detail.batch.machine ? ` on ${detail.batch.machine.name} (${detail.batch.machine.assetTag})` : ''}
                   {detail.batch.ring ? `, ring ${detail.batch.ring.serial}` : ''}; {detail.batch.unitsShipped.toLocaleString('en-US')} capsules shipped; {detail.batch.status.replace('_', ' ')}
-                </Row>
+                </DetailRow>
               ) : null}
-              <Row label="What they found">
+              <DetailRow label="What they found">
                 <span className="whitespace-pre-line">{c.description}</span>
-              </Row>
-              <Row label="Capsules affected">{c.unitsAffected ?? 'Not said'}</Row>
-              <Row label="Person harmed">
+              </DetailRow>
+              <DetailRow label="Capsules affected">{c.unitsAffected ?? 'Not said'}</DetailRow>
+              <DetailRow label="Person harmed">
                 {c.personHarmed ? (
                   detail.personal ? (
                     <span className="whitespace-pre-line font-semibold text-danger-700">Yes: {detail.personal.harmDescription}</span>
@@ -288,33 +270,33 @@ export default async function ComplaintDetailPage({ params, searchParams }: Page
                 ) : (
                   'No'
                 )}
-              </Row>
-              <Row label="Samples coming back">{c.samplesReturning ? 'Yes' : 'No'}</Row>
+              </DetailRow>
+              <DetailRow label="Samples coming back">{c.samplesReturning ? 'Yes' : 'No'}</DetailRow>
             </dl>
           </Section>
 
           <Section id="assessment" title="Assessment" testId="assessment-section">
             {c.category !== null ? (
               <dl className={dl}>
-                <Row label="Category">{detail.categoryLabel}</Row>
-                <Row label="Adverse event">{yesNo(c.adverseEvent)}</Row>
-                {c.adverseEvent ? <Row label="Serious">{yesNo(c.seriousAdverseEvent)}</Row> : null}
-                <Row label="Reportable">
+                <DetailRow label="Category">{detail.categoryLabel}</DetailRow>
+                <DetailRow label="Adverse event">{yesNo(c.adverseEvent)}</DetailRow>
+                {c.adverseEvent ? <DetailRow label="Serious">{yesNo(c.seriousAdverseEvent)}</DetailRow> : null}
+                <DetailRow label="Reportable">
                   {c.reportable ? `Yes: ${c.reportKind ? reportKindLabels[c.reportKind] : ''}, due ${c.reportDueOn}` : yesNo(c.reportable)}
-                </Row>
-                {c.reportSubmittedAt ? <Row label="Report submitted">{c.reportSubmittedAt.slice(0, 10)}</Row> : null}
-                <Row label="Rationale">
+                </DetailRow>
+                {c.reportSubmittedAt ? <DetailRow label="Report submitted">{c.reportSubmittedAt.slice(0, 10)}</DetailRow> : null}
+                <DetailRow label="Rationale">
                   <span className="whitespace-pre-line">{c.assessmentRationale}</span>
-                </Row>
+                </DetailRow>
                 {c.reportabilityDecidedAt ? (
-                  <Row label="Decision signed">
+                  <DetailRow label="Decision signed">
                     {formatUtc(c.reportabilityDecidedAt)} by {detail.decidedByName}
-                  </Row>
+                  </DetailRow>
                 ) : null}
                 {c.investigationSkipReason ? (
-                  <Row label="No investigation because">
+                  <DetailRow label="No investigation because">
                     <span className="whitespace-pre-line">{c.investigationSkipReason}</span>
-                  </Row>
+                  </DetailRow>
                 ) : null}
               </dl>
             ) : (
@@ -355,14 +337,14 @@ export default async function ComplaintDetailPage({ params, searchParams }: Page
           {c.status !== 'received' && c.status !== 'assessment' && !c.investigationSkipReason ? (
             <Section id="investigation" title="Investigation" testId="investigation-section">
               <dl className={dl}>
-                <Row label="Retained samples checked">{yesNo(c.retainedSamplesChecked)}</Row>
+                <DetailRow label="Retained samples checked">{yesNo(c.retainedSamplesChecked)}</DetailRow>
                 {c.retainedSamplesNote ? (
-                  <Row label="Retained samples">
+                  <DetailRow label="Retained samples">
                     <span className="whitespace-pre-line">{c.retainedSamplesNote}</span>
-                  </Row>
+                  </DetailRow>
                 ) : null}
-                <Row label="Summary">{c.investigationSummary ? <span className="whitespace-pre-line">{c.investigationSummary}</span> : 'Not written yet'}</Row>
-                <Row label="Linked records">
+                <DetailRow label="Summary">{c.investigationSummary ? <span className="whitespace-pre-line">{c.investigationSummary}</span> : 'Not written yet'}</DetailRow>
+                <DetailRow label="Linked records">
                   {detail.links.length === 0 ? (
                     'None yet'
                   ) : (
@@ -377,7 +359,7 @@ export default async function ComplaintDetailPage({ params, searchParams }: Page
                       ))}
                     </ul>
                   )}
-                </Row>
+                </DetailRow>
               </dl>
               {detail.batch && detail.batchDeviations ? (
                 <div className="mt-4">

@@ -17,6 +17,8 @@ import { ClassificationBadge } from '@/components/risk/classification-badge';
 import { BatchStatusBadge } from '@/components/ui/batch-status';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { eventFormProps, type EventFormText } from '@/components/records/event-form-text';
+import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
 import { requirePageUser } from '@/lib/auth/session';
 import { todayIn } from '@/lib/clocks/dates';
@@ -32,7 +34,6 @@ import { can } from '@/lib/auth/permissions';
 import { NotFoundError } from '@/lib/errors';
 import { quarantineCaution } from '@/lib/risk/classify';
 import { getCurrentRiskScales } from '@/lib/risk-scales/queries';
-import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
 import { getDueDaySettings, getSiteTimeZone } from '@/lib/site-calendar/queries';
 import type { DeviationEventType } from '@/workflows/deviation';
 import { submitDeviationEvent, submitTriage } from './actions';
@@ -60,7 +61,7 @@ const doneMessages: Record<DeviationEventType | 'triage' | 'investigation' | 'in
 
 type Allowed = DeviationDetailDto['allowedEvents'][number];
 
-const formTexts: Record<DeviationEventType, Pick<DeviationEventFormProps, 'heading' | 'description' | 'submitLabel' | 'pendingLabel' | 'danger'> & { reasonLabel?: string; reasonHint?: string }> = {
+const formTexts: Record<DeviationEventType, EventFormText> = {
   submit: {
     heading: 'Submit the deviation',
     description: 'Gives it its DEV number, puts the chosen batches on hold and sends it to QA.',
@@ -119,21 +120,12 @@ const formTexts: Record<DeviationEventType, Pick<DeviationEventFormProps, 'headi
 };
 
 function formFor(detail: DeviationDetailDto, event: Allowed, signerName: string): DeviationEventFormProps {
-  const text = formTexts[event.type];
   return {
     action: submitDeviationEvent,
     deviationId: detail.deviation.id,
     version: detail.deviation.version,
     event: event.type,
-    heading: text.heading,
-    description: text.description,
-    submitLabel: text.submitLabel,
-    pendingLabel: text.pendingLabel,
-    danger: text.danger,
-    reason: event.reasonRequired ? { label: text.reasonLabel ?? 'Reason', hint: text.reasonHint ?? 'Recorded with your name and the time.' } : undefined,
-    signature: event.signature
-      ? { meaningLabel: signatureMeaningLabels[event.signature], statement: signatureMeaningStatements[event.signature], signerName }
-      : undefined,
+    ...eventFormProps(formTexts[event.type], event, signerName),
   };
 }
 
@@ -150,14 +142,6 @@ function noActionsText(status: DeviationDetailDto['deviation']['status']): strin
 
 const dateOnly = (iso: string | null) => (iso ? iso.slice(0, 10) : null);
 
-function Row({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-600">{label}</dt>
-      <dd className="min-w-0 break-words">{children}</dd>
-    </>
-  );
-}
 
 export default async function DeviationPage({ params, searchParams }: PageProps<'/deviations/[id]'>) {
   const { id: rawId } = await params;
@@ -246,11 +230,11 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
             </h2>
             <p className="mt-2 whitespace-pre-line text-ink-900">{d.whatHappened}</p>
             <dl className="mt-4 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
-              <Row label="Defect">{defect ? `${defect.name} (${defect.code})` : 'Not named'}</Row>
-              <Row label="Product">{detail.product ? `${detail.product.name} ${detail.product.strength} (${detail.product.code})` : 'Not named'}</Row>
-              <Row label="Lot">{detail.lotNumber ?? 'Not named'}</Row>
-              <Row label="Machine">{detail.machine ? `${detail.machine.name} (${detail.machine.assetTag})` : 'Not named'}</Row>
-              <Row label="Filling ring">
+              <DetailRow label="Defect">{defect ? `${defect.name} (${defect.code})` : 'Not named'}</DetailRow>
+              <DetailRow label="Product">{detail.product ? `${detail.product.name} ${detail.product.strength} (${detail.product.code})` : 'Not named'}</DetailRow>
+              <DetailRow label="Lot">{detail.lotNumber ?? 'Not named'}</DetailRow>
+              <DetailRow label="Machine">{detail.machine ? `${detail.machine.name} (${detail.machine.assetTag})` : 'Not named'}</DetailRow>
+              <DetailRow label="Filling ring">
                 {detail.ring ? (
                   <Link href={`/equipment/rings/${detail.ring.id}`} className="underline underline-offset-4">
                     {detail.ring.serial}
@@ -258,16 +242,16 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
                 ) : (
                   'Not named'
                 )}
-              </Row>
-              <Row label="Capsules affected">{d.affectedCount ?? '—'}</Row>
-              {d.sampleDescription ? <Row label="Sample">{d.sampleDescription}</Row> : null}
-              <Row label="Occurred">{formatUtc(d.occurredAt)}</Row>
-              <Row label="Raised by">{detail.raisedByName}</Row>
-              {d.reportedAt ? <Row label="Reported">{formatUtc(d.reportedAt)}</Row> : null}
-              <Row label="Done at once">
+              </DetailRow>
+              <DetailRow label="Capsules affected">{d.affectedCount ?? '—'}</DetailRow>
+              {d.sampleDescription ? <DetailRow label="Sample">{d.sampleDescription}</DetailRow> : null}
+              <DetailRow label="Occurred">{formatUtc(d.occurredAt)}</DetailRow>
+              <DetailRow label="Raised by">{detail.raisedByName}</DetailRow>
+              {d.reportedAt ? <DetailRow label="Reported">{formatUtc(d.reportedAt)}</DetailRow> : null}
+              <DetailRow label="Done at once">
                 {[d.lineStopped ? 'Line stopped' : null, d.capsulesSegregated ? 'Capsules segregated' : null].filter(Boolean).join(', ') || 'Nothing ticked'}
                 {d.immediateActions ? <span className="mt-1 block whitespace-pre-line">{d.immediateActions}</span> : null}
-              </Row>
+              </DetailRow>
             </dl>
             <h3 id="held-batches-heading" className="mt-5 font-semibold">
               Held batches
@@ -338,14 +322,14 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
                 Triage
               </h2>
               <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
-                <Row label="Classification">{d.classification ? classificationLabels[d.classification] : 'Not classified yet'}</Row>
-                <Row label="S · O · D">
+                <DetailRow label="Classification">{d.classification ? classificationLabels[d.classification] : 'Not classified yet'}</DetailRow>
+                <DetailRow label="S · O · D">
                   {d.severity ?? '–'} · {d.occurrence ?? '–'} · {d.detection ?? '–'}
-                </Row>
-                <Row label="RPN">{d.rpn ?? '—'}</Row>
-                {d.classificationReason ? <Row label="Reason">{d.classificationReason}</Row> : null}
-                <Row label="Investigator">{detail.investigatorName ?? 'Not assigned'}</Row>
-                <Row label="Due">{dateOnly(d.dueAt) ?? 'Not set'}</Row>
+                </DetailRow>
+                <DetailRow label="RPN">{d.rpn ?? '—'}</DetailRow>
+                {d.classificationReason ? <DetailRow label="Reason">{d.classificationReason}</DetailRow> : null}
+                <DetailRow label="Investigator">{detail.investigatorName ?? 'Not assigned'}</DetailRow>
+                <DetailRow label="Due">{dateOnly(d.dueAt) ?? 'Not set'}</DetailRow>
               </dl>
             </section>
           ) : null}

@@ -7,6 +7,7 @@ import { EvidenceList } from '@/components/evidence/evidence-list';
 import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
 import { StatusBadge } from '@/components/ui/status-badge';
 import { listAttachments } from '@/lib/attachments/queries';
@@ -28,14 +29,6 @@ import { askForFreshLink, signReview } from './actions';
 
 export const metadata: Metadata = { title: 'Effectiveness review', referrer: 'no-referrer' };
 
-function Row({ label, children }: { label: string; children: React.ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-600">{label}</dt>
-      <dd className="min-w-0 break-words">{children}</dd>
-    </>
-  );
-}
 
 function ProblemPage({ view, token }: { view: Extract<ReviewLinkView, { ok: false }>; token: string }) {
   return (
@@ -88,14 +81,14 @@ function ActionItem({ a }: { a: CapaActionDto }) {
       </div>
       <p className="mt-2 whitespace-pre-line">{a.description}</p>
       <dl className="mt-2 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">
-        <Row label="Owner">{a.ownerName}</Row>
-        <Row label="Due">{a.dueAt.slice(0, 10)}</Row>
+        <DetailRow label="Owner">{a.ownerName}</DetailRow>
+        <DetailRow label="Due">{a.dueAt.slice(0, 10)}</DetailRow>
         {a.completedAt ? (
-          <Row label="Completed">
+          <DetailRow label="Completed">
             {formatUtc(a.completedAt)} by {a.completedByName ?? 'unknown'}
-          </Row>
+          </DetailRow>
         ) : null}
-        {a.evidence ? null : <Row label="Evidence">None recorded</Row>}
+        {a.evidence ? null : <DetailRow label="Evidence">None recorded</DetailRow>}
       </dl>
       {a.evidence ? (
         <div className="mt-2 text-sm">
@@ -172,11 +165,11 @@ export default async function ReviewPage({ params }: PageProps<'/review/[token]'
             The problem and its cause
           </h2>
           <dl className="mt-3 grid grid-cols-[max-content_minmax(0,1fr)] gap-x-6 gap-y-2">
-            <Row label="Problem">
+            <DetailRow label="Problem">
               <span className="whitespace-pre-line">{c.problemStatement}</span>
-            </Row>
-            <Row label="Root cause">{c.rootCause ? <span className="whitespace-pre-line">{c.rootCause}</span> : 'Not written'}</Row>
-            <Row label="Source record">
+            </DetailRow>
+            <DetailRow label="Root cause">{c.rootCause ? <span className="whitespace-pre-line">{c.rootCause}</span> : 'Not written'}</DetailRow>
+            <DetailRow label="Source record">
               {source.href ? (
                 <Link href={source.href} className="underline underline-offset-4">
                   {capaSourceLabels[source.type]} {source.number ?? `#${source.id}`}
@@ -185,9 +178,9 @@ export default async function ReviewPage({ params }: PageProps<'/review/[token]'
                 `${capaSourceLabels[source.type]}${source.number ? ` ${source.number}` : ''}`
               )}
               {source.title ? `: ${source.title}` : ''}
-            </Row>
-            {c.actionsCompletedAt ? <Row label="Actions completed">{formatUtc(c.actionsCompletedAt)}</Row> : null}
-            {c.effectivenessOpenedAt ? <Row label="Check opened">{formatUtc(c.effectivenessOpenedAt)}</Row> : null}
+            </DetailRow>
+            {c.actionsCompletedAt ? <DetailRow label="Actions completed">{formatUtc(c.actionsCompletedAt)}</DetailRow> : null}
+            {c.effectivenessOpenedAt ? <DetailRow label="Check opened">{formatUtc(c.effectivenessOpenedAt)}</DetailRow> : null}
           </dl>
         </section>
 
