@@ -6,10 +6,15 @@
  * the CAPA signs the plan "approved"; the owner then starts the implementation, and each action owner
  * records their action as done with evidence. Once every action of the plan is completed, the owner
  * or QA opens the effectiveness check (the mail worker does it as the owner when the criterion's
- * period has run). A QA approver who is not the owner signs the outcome: "effective" closes the CAPA;
+ * period has run). An independent QA approver signs the outcome: "effective" closes the CAPA;
  * "not effective", with the reason, sends it back to proposed, where a new round of actions is planned
  * and approved; the earlier actions stay on record. QA may cancel an open CAPA with a reason and a
  * signature. Closed and cancelled are final.
+ *
+ * Who counts as independent (not the owner, the creator, an action owner or whoever completed an
+ * action; a cancel not by the owner) is declared by the record kind (lib/capa/kind.ts) per event,
+ * with the other rules on who sees and edits a CAPA; the guards here say only what the lifecycle
+ * itself needs.
  *
  * Guards read only the actor and the context (computed from the stored row: the owner, the counts of
  * the current round's actions and whether the criteria are written), never the event's payload.
@@ -53,11 +58,7 @@ export interface CapaTransitionRules {
 
 const qa: readonly string[] = ['qa_investigator', 'qa_approver'];
 
-type GuardArgs = { context: CapaContext; event: CapaEvent };
-
-function independentQaApprover({ context, event }: GuardArgs): boolean {
-  return event.actor.role === 'qa_approver' && event.actor.id !== context.ownerId;
-}
+const isQaApprover = (actor: CapaActor) => actor.role === 'qa_approver';
 
 const cancel = {
   target: 'cancelled',
@@ -73,14 +74,13 @@ export const capaMachine = setup({
     transitionMeta: {} as CapaTransitionRules,
   },
   guards: {
-    completePlanByIndependentApprover: (args) =>
-      args.context.actionsPlanned > 0 && args.context.criteriaWritten && independentQaApprover(args),
+    completePlanByApprover: ({ context, event }) => context.actionsPlanned > 0 && context.criteriaWritten && isQaApprover(event.actor),
     byOwner: ({ context, event }) => event.actor.id === context.ownerId,
     actionsDoneByOwnerOrQa: ({ context, event }) =>
       context.actionsPlanned > 0 &&
       context.actionsOpen === 0 &&
       (event.actor.id === context.ownerId || qa.includes(event.actor.role)),
-    byIndependentApprover: (args) => independentQaApprover(args),
+    byApprover: ({ event }) => isQaApprover(event.actor),
     byQa: ({ event }) => qa.includes(event.actor.role),
   },
   actions: {
@@ -103,7 +103,7 @@ export const capaMachine = setup({
       on: {
         approve_plan: {
           target: 'plan_approved',
-          guard: 'completePlanByIndependentApprover',
+          guard: 'completePlanByApprover',
           actions: 'notifyPlanApproved',
           meta: { signature: 'approved' },
         },
@@ -130,13 +130,13 @@ export const capaMachine = setup({
       on: {
         record_effective: {
           target: 'closed_effective',
-          guard: 'byIndependentApprover',
+          guard: 'byApprover',
           actions: 'notifyClosed',
           meta: { signature: 'effective' },
         },
         record_not_effective: {
           target: 'proposed',
-          guard: 'byIndependentApprover',
+          guard: 'byApprover',
           actions: 'notifyNotEffective',
           meta: { reason: 'required', signature: 'not_effective' },
         },
@@ -153,13 +153,11 @@ export const capaMachine = setup({
  * names every condition its transition checks.
  */
 export const capaGuardRefusals: Record<keyof typeof capaMachine.implementations.guards, string> = {
-  completePlanByIndependentApprover:
-    'The plan can be approved only once it has at least one action and its effectiveness criteria are written, ' +
-    'and only by a QA approver who does not own this CAPA (segregation of duties).',
+  completePlanByApprover:
+    'The plan can be approved by a QA approver once it has at least one action and its effectiveness criteria are written.',
   byOwner: 'Only the owner of this CAPA can start its implementation.',
   actionsDoneByOwnerOrQa:
     'The effectiveness check opens only once every action of the plan is completed, and only by the CAPA owner or QA.',
-  byIndependentApprover:
-    'Only a QA approver who does not own this CAPA can record whether it was effective (segregation of duties).',
+  byApprover: 'Only a QA approver can record whether a CAPA was effective.',
   byQa: 'Only QA can cancel a CAPA.',
 };

@@ -8,6 +8,8 @@
  * completes the investigation (retained samples, the batch's deviations, links to a deviation or a
  * CAPA, a summary) and signs it ("investigation complete"). QA writes and sends the answer; a QA
  * approver then closes the complaint with an "approved" signature, once the answer has gone out.
+ * That approver is a second person: not whoever took it down, owns it, decided its reportability,
+ * signed its investigation, or wrote or sent the answer (declared by lib/complaints/kind.ts).
  * A closed complaint may be reopened by QA, with a reason, to the assessment (new information about
  * the event) or to the investigation (new findings).
  *

@@ -6,11 +6,15 @@
  * investigation. The assigned investigator finishes the investigation and submits it for approval,
  * signing as its author. A QA approver either returns it for rework with a comment or approves it with
  * an "approved" signature, which gives each held batch its disposition. Closing, either way, needs a
- * disposition for every held batch. Until it is in approval, QA may cancel a deviation raised in error
- * or twice, with a reason and a signature. Closed and cancelled are final.
+ * disposition for every held batch. Once reported and until it is in approval, QA may cancel a
+ * deviation raised in error or twice, with a reason and a signature. A draft is its author's until
+ * submitted: only they may discard it, and a discarded draft stays theirs alone. Closed, cancelled
+ * and discarded are final.
  *
- * Segregation of duties is a rule, not a habit: nobody approves, closes or cancels a deviation they
- * raised or investigated, because a second person's judgement is the point of the signature.
+ * Segregation of duties is a rule, not a habit: nobody approves, closes, returns or cancels a
+ * deviation they raised or investigated. The record kind (lib/deviations/kind.ts) declares it per
+ * event, with everything else about who may see and change a deviation; the guards here say only
+ * what the lifecycle itself needs (the role that sends an event, and the record being ready).
  *
  * Guards read only the actor and the context (the stored record), never the event's payload, so the
  * write path can ask which events a person may send before they type anything. Each transition's
@@ -38,6 +42,7 @@ export type DeviationContext = {
 
 export const deviationEvents = [
   'submit',
+  'discard',
   'start_triage',
   'close_minor',
   'assign_investigation',
@@ -57,15 +62,7 @@ export interface DeviationTransitionRules {
 const floorAndQa: readonly string[] = ['operator', 'supervisor', 'qa_investigator', 'qa_approver'];
 const qa: readonly string[] = ['qa_investigator', 'qa_approver'];
 
-type GuardArgs = { context: DeviationContext; event: DeviationEvent };
-
-function independentOfRecord({ context, event }: GuardArgs): boolean {
-  return event.actor.id !== context.raisedBy && event.actor.id !== context.investigatorId;
-}
-
-function independentQaApprover(args: GuardArgs): boolean {
-  return args.event.actor.role === 'qa_approver' && independentOfRecord(args);
-}
+const isQaApprover = (actor: DeviationActor) => actor.role === 'qa_approver';
 
 export const deviationMachine = setup({
   types: {
@@ -78,16 +75,13 @@ export const deviationMachine = setup({
     byQaInvestigator: ({ event }) => event.actor.role === 'qa_investigator',
     byQaInvestigatorOnceAssigned: ({ context, event }) =>
       event.actor.role === 'qa_investigator' && context.investigatorId !== null,
-    minorByIndependentApproverWithBatchesDisposed: (args) =>
-      args.context.classification === 'minor' &&
-      args.context.heldBatchesWithoutDisposition === 0 &&
-      independentQaApprover(args),
+    minorByApproverWithBatchesDisposed: ({ context, event }) =>
+      context.classification === 'minor' && context.heldBatchesWithoutDisposition === 0 && isQaApprover(event.actor),
     byAssignedInvestigator: ({ context, event }) =>
       event.actor.role === 'qa_investigator' && event.actor.id === context.investigatorId,
     byQaApprover: ({ event }) => event.actor.role === 'qa_approver',
-    byIndependentApproverWithBatchesDisposed: (args) =>
-      args.context.heldBatchesWithoutDisposition === 0 && independentQaApprover(args),
-    byIndependentQa: (args) => qa.includes(args.event.actor.role) && independentOfRecord(args),
+    byApproverWithBatchesDisposed: ({ context, event }) => context.heldBatchesWithoutDisposition === 0 && isQaApprover(event.actor),
+    byQa: ({ event }) => qa.includes(event.actor.role),
   },
   actions: {
     // Named here, performed by lib/ inside the transaction that makes the change.
@@ -108,20 +102,20 @@ export const deviationMachine = setup({
     draft: {
       on: {
         submit: { target: 'reported', guard: 'byItsAuthor', actions: 'holdBatches' },
-        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+        discard: { target: 'discarded', guard: 'byItsAuthor' },
       },
     },
     reported: {
       on: {
         start_triage: { target: 'triage', guard: 'byQaInvestigator' },
-        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+        cancel: { target: 'cancelled', guard: 'byQa', meta: { reason: 'required', signature: 'approved' } },
       },
     },
     triage: {
       on: {
         close_minor: {
           target: 'closed',
-          guard: 'minorByIndependentApproverWithBatchesDisposed',
+          guard: 'minorByApproverWithBatchesDisposed',
           actions: ['applyDispositions', 'notifyClosed'],
           meta: { reason: 'required', signature: 'approved' },
         },
@@ -130,7 +124,7 @@ export const deviationMachine = setup({
           guard: 'byQaInvestigatorOnceAssigned',
           actions: 'notifyInvestigatorAssigned',
         },
-        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+        cancel: { target: 'cancelled', guard: 'byQa', meta: { reason: 'required', signature: 'approved' } },
       },
     },
     investigation: {
@@ -142,7 +136,7 @@ export const deviationMachine = setup({
           // "Investigation complete": the investigator signs as the author of the investigation.
           meta: { signature: 'investigation_complete' },
         },
-        cancel: { target: 'cancelled', guard: 'byIndependentQa', meta: { reason: 'required', signature: 'approved' } },
+        cancel: { target: 'cancelled', guard: 'byQa', meta: { reason: 'required', signature: 'approved' } },
       },
     },
     approval: {
@@ -155,7 +149,7 @@ export const deviationMachine = setup({
         },
         approve: {
           target: 'closed',
-          guard: 'byIndependentApproverWithBatchesDisposed',
+          guard: 'byApproverWithBatchesDisposed',
           actions: ['applyDispositions', 'notifyClosed'],
           meta: { signature: 'approved' },
         },
@@ -163,6 +157,7 @@ export const deviationMachine = setup({
     },
     closed: { type: 'final' },
     cancelled: { type: 'final' },
+    discarded: { type: 'final' },
   },
 });
 
@@ -171,19 +166,16 @@ export const deviationMachine = setup({
  * reports one guard by name), so each message names every condition that transition checks.
  */
 export const deviationGuardRefusals: Record<keyof typeof deviationMachine.implementations.guards, string> = {
-  byItsAuthor: 'Only the person who raised this deviation can submit it.',
+  byItsAuthor: 'Only the person who wrote this draft can submit or discard it.',
   byQaInvestigator: 'Only a QA investigator can start the triage of a deviation.',
   byQaInvestigatorOnceAssigned:
     'Only a QA investigator can open the investigation, and only once an investigator has been assigned.',
-  minorByIndependentApproverWithBatchesDisposed:
-    'Only a minor deviation can be closed at triage, by a QA approver who neither raised nor investigated it ' +
-    '(segregation of duties), once every held batch has a disposition.',
+  minorByApproverWithBatchesDisposed:
+    'Only a minor deviation can be closed at triage, by a QA approver, once every held batch has a disposition ' +
+    '(record them under "Held batches").',
   byAssignedInvestigator: 'Only the investigator assigned to this deviation can submit its investigation for approval.',
   byQaApprover: 'Only a QA approver can return an investigation for rework.',
-  byIndependentApproverWithBatchesDisposed:
-    'Only a QA approver who neither raised nor investigated this deviation can approve it (segregation of duties), ' +
-    'and only once every held batch has a disposition.',
-  byIndependentQa:
-    'Only a QA investigator or QA approver who neither raised nor investigated this deviation can cancel it ' +
-    '(segregation of duties).',
+  byApproverWithBatchesDisposed:
+    'A deviation is approved by a QA approver once every held batch has a disposition (record them under "Held batches").',
+  byQa: 'Only a QA investigator or QA approver can cancel a deviation.',
 };

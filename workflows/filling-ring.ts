@@ -3,7 +3,9 @@
  * finds something wrong with it (a dent, a burr on the bores, a cracked segment) and quarantines it,
  * saying why. A quarantined ring goes back into service only when a QA investigator or approver has
  * inspected it and signs that it is fit ("verified"); otherwise a QA approver retires it with an
- * "approved" signature. Retirement is final: a retired ring never returns to a machine.
+ * "approved" signature. Retirement is final: a retired ring never returns to a machine. Whoever took
+ * the ring out of service does not also judge it fit or retire it (segregation of duties, declared by
+ * lib/equipment/ring-kind.ts).
  *
  * Guards read only the actor and the context, never the event's payload, so the write path can ask
  * which events a person may send without knowing what they will type. Each transition's `meta`

@@ -12,6 +12,7 @@ export const deviationStates = [
   'approval',
   'closed',
   'cancelled',
+  'discarded',
 ] as const;
 export type DeviationState = (typeof deviationStates)[number];
 

@@ -9,7 +9,7 @@ import { type CapaFormState, idleCapaFormState } from './form-state';
 import { OtherErrors, TextArea } from '@/components/ui/form-bits';
 
 /*
- * The plan while the CAPA is being planned: problem, root cause, owner, due date and the effectiveness
+ * The plan while the CAPA is being planned, by its owner: problem, root cause, due date and the effectiveness
  * criteria, written before any action is taken. The recurrence criterion is the part the product can
  * count for itself: a defect, where (machine or ring) and over how many batches or days.
  */
@@ -19,7 +19,6 @@ export interface PlanFormValues {
   problemStatement: string;
   rootCause: string;
   effectivenessCriteria: string;
-  ownerId: string;
   dueAt: string;
   criterionDefectId: string;
   criterionMachineId: string;
@@ -33,7 +32,6 @@ const shownFields = [
   'problemStatement',
   'rootCause',
   'effectivenessCriteria',
-  'ownerId',
   'dueAt',
   'criterionDefectId',
   'criterionMachineId',
@@ -74,17 +72,7 @@ export function PlanForm({
         defaultValue={v('rootCause')}
         errors={e.rootCause}
       />
-      <div className="grid grid-cols-1 gap-4 md:grid-cols-2">
-        <SelectField
-          name="ownerId"
-          label="Owner"
-          required
-          options={options.owners.map((o) => ({ value: String(o.id), label: o.label }))}
-          defaultValue={v('ownerId')}
-          errors={e.ownerId}
-        />
-        <TextField name="dueAt" label="Due" type="date" defaultValue={v('dueAt')} errors={e.dueAt} />
-      </div>
+      <TextField name="dueAt" label="Due" type="date" defaultValue={v('dueAt')} errors={e.dueAt} />
       <TextArea
         name="effectivenessCriteria"
         label="Effectiveness criteria"

@@ -12,6 +12,7 @@ const stateTones: Record<DeviationState, Tone> = {
   approval: 'info',
   closed: 'ok',
   cancelled: 'neutral',
+  discarded: 'neutral',
 };
 
 export function DeviationStatusBadge({ status }: { status: DeviationState }) {

@@ -46,6 +46,7 @@ const stateTones: Record<DeviationState, Tone> = {
   approval: 'info',
   closed: 'ok',
   cancelled: 'neutral',
+  discarded: 'neutral',
 };
 
 const sortable = new Set<string>(['number', 'raised', 'due', 'rpn', 'status', 'classification'] satisfies DeviationListSort[]);

@@ -1,5 +1,5 @@
 import { formatUtc } from '@/components/ui/format';
-import { StatusBadge } from '@/components/ui/status-badge';
+import { SignatureStatus } from '@/components/records/signature-status';
 import type { SignatureDto } from '@/lib/signatures';
 
 /*
@@ -23,14 +23,7 @@ export function SignatureList({ signatures }: { signatures: readonly SignatureDt
           <p className="text-sm text-ink-700">
             {formatUtc(s.signedAt, true)} · record version {s.recordVersion}
           </p>
-          <p className="flex flex-wrap gap-2">
-            {s.matches ? (
-              <StatusBadge tone="ok" label="Matches the record" />
-            ) : (
-              <StatusBadge tone="warn" label="Record changed after signing" />
-            )}
-            {s.intact ? null : <StatusBadge tone="danger" label="Signature entry altered" />}
-          </p>
+          <SignatureStatus s={s} />
         </li>
       ))}
     </ol>

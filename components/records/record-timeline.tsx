@@ -3,6 +3,7 @@ import { StatusBadge } from '@/components/ui/status-badge';
 import { type TimelineComment, type TimelineEntry, buildTimeline, isMeaningfulChange, userIdFields } from '@/lib/records/timeline';
 import type { AuditEntryDto, HistoryEntryDto } from '@/lib/records/trail';
 import type { SignatureDto } from '@/lib/signatures';
+import { SignatureStatus } from './signature-status';
 
 /*
  * A record's story in one list, newest first, for every record type: each transition once, with its
@@ -159,10 +160,7 @@ function SignatureLine({ s }: { s: SignatureDto }) {
       <p className="text-sm text-ink-600">
         {formatUtc(s.signedAt, true)} · record version {s.recordVersion}
       </p>
-      <p className="mt-1 flex flex-wrap gap-2">
-        {s.matches ? <StatusBadge tone="ok" label="Matches the record" /> : <StatusBadge tone="warn" label="Record changed after signing" />}
-        {s.intact ? null : <StatusBadge tone="danger" label="Signature entry altered" />}
-      </p>
+      <SignatureStatus s={s} />
     </>
   );
 }

@@ -163,6 +163,8 @@ export const signatures = mysqlTable(
     signedAt: datetime('signed_at', { mode: 'string', fsp: 3 }).notNull(),
     recordVersion: int('record_version').notNull(),
     contentHash: char('content_hash', { length: 64 }).notNull(),
+    /** Canonical JSON { part: SHA-256 } of each part of the signed content, so a mismatch can say what changed. */
+    contentParts: text('content_parts'),
     /** Hash of (signer, meaning, time, content hash): links the manifestation to the signed content. */
     signatureHash: char('signature_hash', { length: 64 }).notNull(),
   },

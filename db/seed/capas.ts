@@ -2,12 +2,13 @@ import { eq, inArray, sql } from 'drizzle-orm';
 import { type FieldChange, diffFields, writeDemoAuditAt } from '../../lib/audit';
 import { sqlUtc } from '../../lib/audit/hash';
 import { roleLabels } from '../../lib/auth/roles';
-import { type CapaRow, capaAuditFields, capaSignedContent } from '../../lib/capa/kind';
+import { type CapaRow, capaAuditFields, capaKind } from '../../lib/capa/kind';
 import type { CapaActionCategory, CapaActionKind } from '../../lib/capa/labels';
 import { type RecurrenceCriterion, serializeRecurrenceCriterion } from '../../lib/capa/schemas';
 import { formatRecordNumber } from '../../lib/records/number-format';
 import { numberPrefixes } from '../../lib/records/types';
 import { planEvent, resolveSnapshot } from '../../lib/records/workflow';
+import { loadRelated, signedContentOf } from '../../lib/records/write-path';
 import { signatureContentHash, signatureManifestHash } from '../../lib/signatures/hash';
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { type CapaEventType, capaMachine } from '../../workflows/capa';
@@ -698,7 +699,7 @@ function finalColumns(row: CapaRow) {
 }
 
 async function insertSignature(tx: Tx, signer: Person, row: CapaRow, meaning: SignatureMeaning, reason: string | null, t: Date): Promise<void> {
-  const contentHash = signatureContentHash('capa', row.id, row.version, capaSignedContent(row));
+  const contentHash = signatureContentHash('capa', row.id, row.version, signedContentOf(capaKind, meaning, row, await loadRelated(capaKind, tx, row))!);
   const manifest = {
     recordType: 'capa',
     recordId: row.id,

@@ -5,12 +5,13 @@ import { roleLabels } from '../../lib/auth/roles';
 import { addBusinessDays, makeCalendar } from '../../lib/clocks/business-days';
 import { addDays } from '../../lib/clocks/dates';
 import { reportDueOn } from '../../lib/complaints/deadline';
-import { type ComplaintRow, complaintAuditFields, complaintSignedContent } from '../../lib/complaints/kind';
+import { type ComplaintRow, complaintAuditFields, complaintKind } from '../../lib/complaints/kind';
 import { type ComplainantKind, type IntakeChannel, isNonDefectCategory, reportKindFor } from '../../lib/complaints/labels';
 import { draftLetterHtml } from '../../lib/complaints/letter';
 import { formatRecordNumber } from '../../lib/records/number-format';
 import { numberPrefixes } from '../../lib/records/types';
 import { planEvent, resolveSnapshot } from '../../lib/records/workflow';
+import { loadRelated, signedContentOf } from '../../lib/records/write-path';
 import { signatureContentHash, signatureManifestHash } from '../../lib/signatures/hash';
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { type ComplaintEventType, complaintMachine } from '../../workflows/complaint';
@@ -789,7 +790,7 @@ function finalColumns(row: ComplaintRow) {
 }
 
 async function insertSignature(tx: Tx, signer: Person, row: ComplaintRow, meaning: SignatureMeaning, reason: string | null, t: Date): Promise<void> {
-  const contentHash = signatureContentHash('complaint', row.id, row.version, complaintSignedContent(row));
+  const contentHash = signatureContentHash('complaint', row.id, row.version, signedContentOf(complaintKind, meaning, row, await loadRelated(complaintKind, tx, row))!);
   const manifest = {
     recordType: 'complaint',
     recordId: row.id,

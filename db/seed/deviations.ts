@@ -3,12 +3,13 @@ import { diffFields, writeDemoAuditAt } from '../../lib/audit';
 import { sqlUtc } from '../../lib/audit/hash';
 import { roleLabels } from '../../lib/auth/roles';
 import { defaultDueDays, dueDateFor } from '../../lib/clocks/due-dates';
-import { type DeviationRow, deviationAuditFields, deviationSignedContent } from '../../lib/deviations/kind';
+import { type DeviationRow, deviationAuditFields, deviationKind } from '../../lib/deviations/kind';
 import { formatRecordNumber } from '../../lib/records/number-format';
 import { numberPrefixes } from '../../lib/records/types';
 import { planEvent, resolveSnapshot } from '../../lib/records/workflow';
 import { type Classification, classify } from '../../lib/risk/classify';
 import { rpn } from '../../lib/risk/rpn';
+import { loadRelated, signedContentOf } from '../../lib/records/write-path';
 import { signatureContentHash, signatureManifestHash } from '../../lib/signatures/hash';
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { deviationMachine } from '../../workflows/deviation';
@@ -1280,7 +1281,7 @@ async function insertSignature(
   reason: string | null,
   at: Date,
 ): Promise<void> {
-  const contentHash = signatureContentHash('deviation', row.id, row.version, deviationSignedContent(row));
+  const contentHash = signatureContentHash('deviation', row.id, row.version, signedContentOf(deviationKind, meaning, row, await loadRelated(deviationKind, tx, row))!);
   const manifest = {
     recordType: 'deviation',
     recordId: row.id,

@@ -2,14 +2,16 @@ import 'server-only';
 import { createHash } from 'node:crypto';
 import path from 'node:path';
 import { db, type Db } from '../../db/client';
-import { ServiceUnavailableError, ValidationError } from '../errors';
+import { ForbiddenError, InvalidTransitionError, ServiceUnavailableError, ValidationError } from '../errors';
+import { evidenceKinds } from '../record-kinds';
+import { editRecord } from '../records/write-path';
 import type { RecordActor } from '../records/kind';
 import type { RecordType } from '../records/types';
 import { newAttachmentKey, recordAttachment } from '../storage';
 import { assertAcceptableFile } from './detect';
 import type { AttachmentDto } from './dto';
 import { getAttachment } from './queries';
-import { assertMayAttach, getRecordAccess } from './record-access';
+import { getRecordAccess } from './record-access';
 import { type AttachmentStore, defaultAttachmentStore } from './store';
 
 /*
@@ -51,7 +53,11 @@ export async function uploadAttachment(
   const database = options.database ?? db;
   const fileName = cleanFileName(input.file.name);
 
-  assertMayAttach(await getRecordAccess(database, input.recordType, input.recordId, actor));
+  const access = await getRecordAccess(database, input.recordType, input.recordId, actor);
+  // The same refusal the write path gives under the lock, so a closed record answers alike either way.
+  if (access.attachRefusal) {
+    throw access.attachRefusalStatus === 409 ? new InvalidTransitionError(access.attachRefusal) : new ForbiddenError(access.attachRefusal);
+  }
   const contentType = await assertAcceptableFile(input.file.bytes, fileName);
   const sha256 = createHash('sha256').update(input.file.bytes).digest('hex');
   const key = newAttachmentKey(input.recordType, input.recordId);
@@ -65,21 +71,32 @@ export async function uploadAttachment(
 
   let id: number;
   try {
-    ({ id } = await database.transaction(async (tx) => {
-      // Again under a lock: the record may have been closed while the file was on its way.
-      assertMayAttach(await getRecordAccess(tx, input.recordType, input.recordId, actor, { lock: true }));
-      return recordAttachment(tx, actor, {
-        recordType: input.recordType,
-        recordId: input.recordId,
-        key,
-        fileName,
-        contentType,
-        sizeBytes: input.file.bytes.length,
-        sha256,
-      });
-    }));
+    // On the record's own write path (its "evidence" section): checked again under the record's lock
+    // (it may have been closed while the file was on its way), and the record takes a new version, so
+    // a signature over its evidence no longer matches and a form opened before the file arrived is stale.
+    const outcome = await editRecord(evidenceKinds[access.recordType].kind, {
+      id: input.recordId,
+      section: 'evidence',
+      actor,
+      expectedVersion: null,
+      action: 'attachment_added',
+      async apply(_row, { tx }) {
+        const stored = await recordAttachment(tx, {
+          recordType: input.recordType,
+          recordId: input.recordId,
+          key,
+          fileName,
+          contentType,
+          sizeBytes: input.file.bytes.length,
+          sha256,
+          uploadedBy: actor.id,
+        });
+        return { audit: [stored.change], result: stored.id };
+      },
+    });
+    id = outcome.result!;
   } catch (err) {
-    await store.remove(key).catch((removeErr: unknown) => console.error(`[attachments] orphan object ${key} not removed`, removeErr));
+    await store.remove(key).catch((removeErr: unknown) => console.error(`[attachments] orphan object ${key} not removed`, removeErr instanceof Error ? removeErr.message : removeErr));
     throw err;
   }
   return getAttachment(id, actor, database);

@@ -20,6 +20,7 @@ export const permissions = [
   'capa.read',
   'capa.create',
   'capa.plan',
+  'capa.reassign',
   'capa.complete_action',
   'capa.approve',
   'capa.cancel',
@@ -65,6 +66,8 @@ export const permissionTable: Record<Permission, Partial<Record<Role, Scope>>> =
   'capa.read': { operator: A, supervisor: A, qa_investigator: A, qa_approver: A, admin: A },
   'capa.create': { qa_investigator: A, qa_approver: A },
   'capa.plan': { qa_investigator: A },
+  // Handing a CAPA to another owner: QA approvers, and the owner themselves.
+  'capa.reassign': { qa_investigator: O, qa_approver: A },
   'capa.complete_action': { operator: O, supervisor: O, qa_investigator: O, qa_approver: O },
   'capa.approve': { qa_approver: A },
   'capa.cancel': { qa_investigator: A, qa_approver: A },

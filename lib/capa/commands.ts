@@ -1,21 +1,22 @@
 import 'server-only';
 import { and, eq, ne } from 'drizzle-orm';
-import { db, type Tx } from '../../db/client';
-import { capaActions, capas, complaints, deviations, recordLinks, users } from '../../db/schema';
-import { type FieldChange, diffFields, writeAudit } from '../audit';
-import { assertCan, can } from '../auth/permissions';
+import type { Tx } from '../../db/client';
+import { capaActions, complaints, deviations, recordLinks, users } from '../../db/schema';
+import { type FieldChange, diffFields } from '../audit';
 import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
-import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
-import { type WriteOutcome, insertRecord, transitionRecord } from '../records/write-path';
+import { activeUsers } from '../mail/record-notice';
+import type { RecordActor } from '../records/kind';
+import { type WriteOutcome, createRecord, editRecord, insertRecord, transitionRecord } from '../records/write-path';
 import { parseInput } from '../validation/parse';
-import { type CapaRow, activeUsers, capaAuditFields, capaKind, eligibleApprovers, mailAboutCapa, planApprovalMail } from './kind';
+import { type CapaActionRow, type CapaRow, capaKind, capaNotice, eligibleApprovers, planApprovalMail } from './kind';
 import { cleanEvidence } from './evidence-text';
-import { capaActionCategoryLabels, capaStateLabels } from './labels';
+import { capaActionCategoryLabels } from './labels';
 import {
   type AddActionInput,
   type CapaVersionInput,
   type CompleteActionInput,
   type CreateCapaInput,
+  type ReassignOwnerInput,
   type SignedInput,
   type SignedReasonInput,
   type UpdateActionInput,
@@ -26,6 +27,7 @@ import {
   createCapaSchema,
   criterionFromFields,
   parseRecurrenceCriterion,
+  reassignOwnerSchema,
   serializeRecurrenceCriterion,
   signedReasonSchema,
   signedSchema,
@@ -34,25 +36,19 @@ import {
 } from './schemas';
 
 /*
- * CAPA commands. Lifecycle events go through the write path (transitionRecord), which checks role,
- * record, version and the machine's guards. The plan and its actions are edits, not transitions:
- * each locks the CAPA row, checks the same things, keeps the CAPA's action counters in step (the
- * guards read them) and audits every changed field, the actions' included, in the same transaction
+ * CAPA commands: what each event and each section edit changes. Who may do it and when are the
+ * record kind's rules (lib/capa/kind.ts), checked by the write path on the locked CAPA. The plan
+ * and its actions are section edits: each keeps the CAPA's action counters in step (lists read
+ * them) and audits every changed field, the actions' included, in the same transaction
  * (21 CFR 11.10(e)). Every action change bumps the CAPA's version, so a plan someone is signing
  * cannot change under them unnoticed.
  */
 
 export type CapaOutcome = WriteOutcome<typeof capaKind>;
-export type CapaActionRow = typeof capaActions.$inferSelect;
+export type { CapaActionRow };
 
 /** The relation a source record has to the CAPA it raised (record_links.relation). */
 export const raisedCapaRelation = 'raised_capa';
-
-const outcome = (actor: RecordActor, row: CapaRow): CapaOutcome => ({
-  record: capaKind.toDto(row),
-  allowedEvents: allowedEventsFor(capaKind, actor, row),
-  signature: null,
-});
 
 /** A CAPA owner plans and runs it: an active QA investigator (capa.plan). */
 async function assertOwnerCandidate(tx: Tx, ownerId: number): Promise<void> {
@@ -89,16 +85,10 @@ export interface NewCapa {
   dueAt?: Date | null;
 }
 
-/**
- * Inserts a proposed CAPA inside the caller's transaction: CAPA number, row, history, audit entry,
- * the owner's notice, and the link from its source record. For callers that raise a CAPA as part of
- * another change (a deviation's investigation); the permission is capa.create.
- */
-export async function insertCapa(tx: Tx, actor: RecordActor, input: NewCapa, reason?: string | null) {
-  const created = await insertRecord(tx, capaKind, {
-    actor,
-    permission: 'capa.create',
-    number: { type: 'capa' },
+/** The insert of a proposed CAPA: its number, row and the link back from its source record. */
+function newCapaRequest(actor: RecordActor, input: NewCapa, reason?: string | null) {
+  return {
+    number: { type: 'capa' as const },
     reason: reason ?? null,
     values: {
       title: input.title,
@@ -110,25 +100,34 @@ export async function insertCapa(tx: Tx, actor: RecordActor, input: NewCapa, rea
       createdBy: actor.id,
       dueAt: input.dueAt ?? null,
     },
-  });
-  if (input.sourceType !== 'trend' && input.sourceId !== null) {
-    await tx.insert(recordLinks).values({
-      fromType: input.sourceType,
-      fromId: input.sourceId,
-      toType: 'capa',
-      toId: created.row.id,
-      relation: raisedCapaRelation,
-      createdBy: actor.id,
-    });
-  }
-  return created;
+    async children(tx: Tx, row: CapaRow) {
+      if (input.sourceType !== 'trend' && input.sourceId !== null) {
+        await tx.insert(recordLinks).values({
+          fromType: input.sourceType,
+          fromId: input.sourceId,
+          toType: 'capa',
+          toId: row.id,
+          relation: raisedCapaRelation,
+          createdBy: actor.id,
+        });
+      }
+    },
+  };
+}
+
+/**
+ * Inserts a proposed CAPA inside the caller's write transaction: CAPA number, row, history, audit
+ * entry, the owner's notice, and the link from its source record. For callers that raise a CAPA as
+ * part of another change (a deviation's investigation, a complaint's); the permission is capa.create.
+ */
+export async function insertCapa(tx: Tx, actor: RecordActor, input: NewCapa, reason?: string | null) {
+  return insertRecord(tx, capaKind, { actor, permission: 'capa.create', ...newCapaRequest(actor, input, reason) });
 }
 
 /** A CAPA raised by QA from a deviation, a complaint or a trend, linked back to its source. */
 export async function createCapa(actor: RecordActor, raw: CreateCapaInput): Promise<CapaOutcome> {
   const input = parseInput(createCapaSchema, raw);
-  assertCan(actor, 'capa.create');
-  const { row, afterCommit } = await db.transaction(async (tx) => {
+  return createRecord(capaKind, actor, 'capa.create', async (tx) => {
     await assertOwnerCandidate(tx, input.ownerId);
     let rootCause = input.rootCause ?? null;
     if (input.sourceType === 'deviation') {
@@ -136,8 +135,8 @@ export async function createCapa(actor: RecordActor, raw: CreateCapaInput): Prom
         .select({ id: deviations.id, status: deviations.status, rootCause: deviations.rootCause })
         .from(deviations)
         .where(eq(deviations.id, input.sourceId!));
-      // A draft is its author's notebook; a CAPA follows from a reported deviation.
-      if (!source || source.status === 'draft') {
+      // A CAPA follows from a reported deviation; a draft (or a discarded one) is its author's notebook.
+      if (!source || source.status === 'draft' || source.status === 'discarded') {
         throw new ValidationError('Pick a reported deviation.', { sourceId: ['No reported deviation has this id.'] });
       }
       // ICH Q10 3.2.2: the action follows from the investigation's root cause; carry it over unless given.
@@ -146,7 +145,7 @@ export async function createCapa(actor: RecordActor, raw: CreateCapaInput): Prom
       const [source] = await tx.select({ id: complaints.id }).from(complaints).where(eq(complaints.id, input.sourceId!));
       if (!source) throw new ValidationError('Pick a complaint.', { sourceId: ['No complaint has this id.'] });
     }
-    return insertCapa(tx, actor, {
+    return newCapaRequest(actor, {
       title: input.title,
       sourceType: input.sourceType,
       sourceId: input.sourceType === 'trend' ? null : input.sourceId!,
@@ -156,124 +155,91 @@ export async function createCapa(actor: RecordActor, raw: CreateCapaInput): Prom
       dueAt: input.dueAt ?? null,
     });
   });
-  await afterCommit();
-  return outcome(actor, row);
 }
 
-/**
- * Locks the CAPA and checks, in the order a person wants to hear them: it exists and they may read
- * it, they may do this, it is in a state where this is done, nobody changed it since (when a version
- * is given).
- */
-async function lockCapa(
-  tx: Tx,
-  actor: RecordActor,
-  id: number,
-  version: number | null,
-  permission: 'capa.plan' | 'capa.complete_action' | 'capa.read',
-  states: readonly CapaRow['status'][],
-  what: string,
-): Promise<CapaRow> {
-  const [row] = await tx.select().from(capas).where(eq(capas.id, id)).for('update');
-  const scope = row ? ownerScope(capaKind, row) : null;
-  if (!row || !scope || !can(actor, 'capa.read', scope)) throw new NotFoundError('This CAPA');
-  if (permission === 'capa.plan') assertCan(actor, permission, scope);
-  if (!states.includes(row.status)) {
-    const where = states.map((s) => capaStateLabels[s].toLowerCase()).join(' or ');
-    throw new InvalidTransitionError(`${what} is possible only while the CAPA is ${where}; it is ${capaStateLabels[row.status].toLowerCase()} now.`);
-  }
-  if (version !== null && row.version !== version) throw new ConflictError();
-  return row;
-}
-
-async function saveCapa(
-  tx: Tx,
-  actor: RecordActor,
-  before: CapaRow,
-  changes: Partial<typeof capas.$inferInsert>,
-  action: string,
-  extraChanges: FieldChange[] = [],
-  reason: string | null = null,
-): Promise<CapaRow> {
-  const [result] = await tx
-    .update(capas)
-    .set({ ...changes, version: before.version + 1 })
-    .where(and(eq(capas.id, before.id), eq(capas.version, before.version)));
-  if (result.affectedRows !== 1) throw new ConflictError();
-  const [after] = await tx.select().from(capas).where(eq(capas.id, before.id));
-  await writeAudit(tx, {
-    actor: { id: actor.id, name: actor.name },
-    recordType: 'capa',
-    recordId: before.id,
-    action,
-    changes: [...diffFields(before, after!, capaAuditFields), ...extraChanges],
-    reason,
-  });
-  return after!;
-}
-
-/** The plan: problem, root cause, effectiveness criteria (text and recurrence), owner and due date. */
+/** The plan: problem, root cause, effectiveness criteria (text and recurrence) and due date, by its owner. */
 export async function updatePlan(actor: RecordActor, raw: UpdatePlanInput): Promise<CapaOutcome> {
   const input = parseInput(updatePlanSchema, raw);
-  const after = await db.transaction(async (tx) => {
-    const before = await lockCapa(tx, actor, input.id, input.version, 'capa.plan', ['proposed'], 'Editing the plan');
-    if (input.ownerId !== before.ownerId) await assertOwnerCandidate(tx, input.ownerId);
-    const saved = await saveCapa(
-      tx,
-      actor,
-      before,
-      {
-        title: input.title,
-        problemStatement: input.problemStatement,
-        rootCause: input.rootCause ?? null,
-        effectivenessCriteria: input.effectivenessCriteria ?? null,
-        recurrenceCriterion: serializeRecurrenceCriterion(criterionFromFields(input)),
-        ownerId: input.ownerId,
-        dueAt: input.dueAt ?? null,
-      },
-      'update_plan',
-    );
-    if (saved.ownerId !== before.ownerId) {
-      await capaKind.effects!.notifyOwnerAssigned!.inTransaction!(tx, {
-        actor,
-        recordType: 'capa',
-        event: 'update_plan',
-        before,
-        after: saved,
-        params: undefined,
-      });
-    }
-    return saved;
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'plan',
+    actor,
+    expectedVersion: input.version,
+    action: 'update_plan',
+    apply(before) {
+      if (input.ownerId !== undefined && input.ownerId !== before.ownerId) {
+        const message = 'The owner is changed with “Reassign the owner”, not with the plan.';
+        throw new ValidationError(message, { ownerId: [message] });
+      }
+      return {
+        changes: {
+          title: input.title,
+          problemStatement: input.problemStatement,
+          rootCause: input.rootCause ?? null,
+          effectivenessCriteria: input.effectivenessCriteria ?? null,
+          recurrenceCriterion: serializeRecurrenceCriterion(criterionFromFields(input)),
+          dueAt: input.dueAt ?? null,
+        },
+      };
+    },
   });
-  return outcome(actor, after);
+}
+
+/** Hands the CAPA to another QA investigator (a QA approver, or the owner themselves), who is told by e-mail. */
+export async function reassignOwner(actor: RecordActor, raw: ReassignOwnerInput): Promise<CapaOutcome> {
+  const input = parseInput(reassignOwnerSchema, raw);
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'owner',
+    actor,
+    expectedVersion: input.version,
+    action: 'reassign_owner',
+    reason: input.reason,
+    async apply(before, { tx }) {
+      if (input.ownerId === before.ownerId) {
+        const message = 'This person owns the CAPA already.';
+        throw new ValidationError(message, { ownerId: [message] });
+      }
+      await assertOwnerCandidate(tx, input.ownerId);
+      const next = { ...before, ownerId: input.ownerId, version: before.version + 1 };
+      await capaNotice(tx, next, await activeUsers(tx, [input.ownerId]), actor, {
+        key: 'capa-owner',
+        template: 'capa_owner_assigned',
+        subject: `CAPA ${before.number} assigned to you`,
+        heading: `You own ${before.number}`,
+        paragraphs: [`${actor.name} made you the owner of CAPA ${before.number}: ${before.title}.`, `Reason: ${input.reason}`],
+        footer: 'You receive this because you are the owner of this CAPA.',
+      });
+      return { changes: { ownerId: input.ownerId } };
+    },
+  });
 }
 
 /**
- * Asks the QA approvers who may sign (not the owner) to approve the plan. Not a transition: the plan
- * stays open to edits, and approving it is what moves the CAPA on. Refused while the plan could not
- * be approved anyway.
+ * Asks the QA approvers who may sign (lib/capa/kind.ts) to approve the plan. Not a transition: the
+ * plan stays open to edits, and approving it is what moves the CAPA on. Refused while the plan
+ * could not be approved anyway.
  */
 export async function requestPlanApproval(actor: RecordActor, raw: CapaVersionInput): Promise<CapaOutcome> {
   const input = parseInput(capaVersionSchema, raw);
-  const row = await db.transaction(async (tx) => {
-    const capa = await lockCapa(tx, actor, input.id, input.version, 'capa.plan', ['proposed'], 'Asking for plan approval');
-    const missing: Record<string, string[]> = {};
-    if (capa.actionsPlanned === 0) missing.actions = ['Add at least one action.'];
-    if (!capa.effectivenessCriteria?.trim()) missing.effectivenessCriteria = ['Write the effectiveness criteria.'];
-    if (Object.keys(missing).length > 0) {
-      throw new ValidationError(`Complete the plan first: ${Object.values(missing).flat().join(' ')}`, missing);
-    }
-    await mailAboutCapa(tx, await eligibleApprovers(tx, capa), actor, capa, planApprovalMail(actor, capa));
-    await writeAudit(tx, {
-      actor: { id: actor.id, name: actor.name },
-      recordType: 'capa',
-      recordId: capa.id,
-      action: 'request_plan_approval',
-      changes: [],
-    });
-    return capa;
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'approval_request',
+    actor,
+    expectedVersion: input.version,
+    action: 'request_plan_approval',
+    async apply(capa, { tx, related }) {
+      const planned = related.actions.filter((a) => a.round === capa.planRound).length;
+      const missing: Record<string, string[]> = {};
+      if (planned === 0) missing.actions = ['Add at least one action.'];
+      if (!capa.effectivenessCriteria?.trim()) missing.effectivenessCriteria = ['Write the effectiveness criteria.'];
+      if (Object.keys(missing).length > 0) {
+        throw new ValidationError(`Complete the plan first: ${Object.values(missing).flat().join(' ')}`, missing);
+      }
+      await capaNotice(tx, capa, await eligibleApprovers(tx, capa, 'approve_plan'), actor, planApprovalMail(actor, capa, planned));
+      return {};
+    },
   });
-  return outcome(actor, row);
 }
 
 const actionAuditFields = ['kind', 'category', 'description', 'ownerId', 'dueAt', 'round', 'completedAt', 'completedBy', 'evidence'] as const;
@@ -283,9 +249,8 @@ function actionChanges(before: CapaActionRow | null, after: CapaActionRow): Fiel
   return diffFields(before, after, actionAuditFields).map((c) => ({ ...c, field: `action ${after.id} · ${c.field}` }));
 }
 
-async function mailActionOwner(tx: Tx, actor: RecordActor, capa: CapaRow, action: CapaActionRow): Promise<void> {
-  const recipients = await activeUsers(tx, [action.ownerId]);
-  await mailAboutCapa(tx, recipients, actor, capa, {
+async function mailActionOwner(tx: Tx, actor: RecordActor, capa: Pick<CapaRow, 'id' | 'number' | 'version' | 'title'>, action: CapaActionRow): Promise<void> {
+  await capaNotice(tx, capa, await activeUsers(tx, [action.ownerId]), actor, {
     key: `capa-action-${action.id}`,
     template: 'capa_action_assigned',
     subject: `CAPA ${capa.number}: an action for you, due ${action.dueAt.toISOString().slice(0, 10)}`,
@@ -302,39 +267,39 @@ async function mailActionOwner(tx: Tx, actor: RecordActor, capa: CapaRow, action
 /** A corrective or preventive action of the current plan round, while the CAPA is being planned. */
 export async function addAction(actor: RecordActor, raw: AddActionInput): Promise<CapaOutcome> {
   const input = parseInput(addActionSchema, raw);
-  const after = await db.transaction(async (tx) => {
-    const before = await lockCapa(tx, actor, input.id, input.version, 'capa.plan', ['proposed'], 'Adding an action');
-    await assertActionOwner(tx, input.ownerId);
-    const [inserted] = await tx
-      .insert(capaActions)
-      .values({
-        capaId: before.id,
-        kind: input.kind,
-        category: input.category,
-        description: input.description,
-        ownerId: input.ownerId,
-        dueAt: input.dueAt,
-        round: before.planRound,
-        createdBy: actor.id,
-      })
-      .$returningId();
-    const [action] = await tx.select().from(capaActions).where(eq(capaActions.id, inserted!.id));
-    const saved = await saveCapa(
-      tx,
-      actor,
-      before,
-      { actionsPlanned: before.actionsPlanned + 1, actionsOpen: before.actionsOpen + 1, actionsCompletedAt: null },
-      'add_action',
-      actionChanges(null, action!),
-    );
-    await mailActionOwner(tx, actor, saved, action!);
-    return saved;
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'actions',
+    actor,
+    expectedVersion: input.version,
+    action: 'add_action',
+    async apply(before, { tx }) {
+      await assertActionOwner(tx, input.ownerId);
+      const [inserted] = await tx
+        .insert(capaActions)
+        .values({
+          capaId: before.id,
+          kind: input.kind,
+          category: input.category,
+          description: input.description,
+          ownerId: input.ownerId,
+          dueAt: input.dueAt,
+          round: before.planRound,
+          createdBy: actor.id,
+        })
+        .$returningId();
+      const [action] = await tx.select().from(capaActions).where(eq(capaActions.id, inserted!.id));
+      await mailActionOwner(tx, actor, { ...before, version: before.version + 1 }, action!);
+      return {
+        changes: { actionsPlanned: before.actionsPlanned + 1, actionsOpen: before.actionsOpen + 1, actionsCompletedAt: null },
+        audit: actionChanges(null, action!),
+      };
+    },
   });
-  return outcome(actor, after);
 }
 
-async function lockAction(tx: Tx, capa: CapaRow, actionId: number): Promise<CapaActionRow> {
-  const [action] = await tx.select().from(capaActions).where(eq(capaActions.id, actionId)).for('update');
+async function currentAction(tx: Tx, capa: CapaRow, actionId: number): Promise<CapaActionRow> {
+  const [action] = await tx.select().from(capaActions).where(eq(capaActions.id, actionId));
   if (!action || action.capaId !== capa.id) throw new NotFoundError('This action');
   if (action.round !== capa.planRound) {
     throw new InvalidTransitionError('This action belongs to an earlier round of the plan; it stays on record as it is.');
@@ -345,28 +310,33 @@ async function lockAction(tx: Tx, capa: CapaRow, actionId: number): Promise<Capa
 /** Changes an action of the plan being written; only while planning, and never a completed one. */
 export async function updateAction(actor: RecordActor, raw: UpdateActionInput): Promise<CapaOutcome> {
   const input = parseInput(updateActionSchema, raw);
-  const after = await db.transaction(async (tx) => {
-    const before = await lockCapa(tx, actor, input.id, input.version, 'capa.plan', ['proposed'], 'Changing an action');
-    const action = await lockAction(tx, before, input.actionId);
-    if (action.completedAt !== null) throw new InvalidTransitionError('This action is completed; it stays on record as it is.');
-    if (input.ownerId !== action.ownerId) await assertActionOwner(tx, input.ownerId);
-    await tx
-      .update(capaActions)
-      .set({
-        kind: input.kind,
-        category: input.category,
-        description: input.description,
-        ownerId: input.ownerId,
-        dueAt: input.dueAt,
-        version: action.version + 1,
-      })
-      .where(and(eq(capaActions.id, action.id), eq(capaActions.version, action.version)));
-    const [changed] = await tx.select().from(capaActions).where(eq(capaActions.id, action.id));
-    const saved = await saveCapa(tx, actor, before, {}, 'update_action', actionChanges(action, changed!));
-    if (changed!.ownerId !== action.ownerId) await mailActionOwner(tx, actor, saved, changed!);
-    return saved;
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'actions',
+    actor,
+    expectedVersion: input.version,
+    action: 'update_action',
+    async apply(before, { tx }) {
+      // The CAPA row is locked, and every change to its actions goes through it: the action cannot change under us.
+      const action = await currentAction(tx, before, input.actionId);
+      if (action.completedAt !== null) throw new InvalidTransitionError('This action is completed; it stays on record as it is.');
+      if (input.ownerId !== action.ownerId) await assertActionOwner(tx, input.ownerId);
+      await tx
+        .update(capaActions)
+        .set({
+          kind: input.kind,
+          category: input.category,
+          description: input.description,
+          ownerId: input.ownerId,
+          dueAt: input.dueAt,
+          version: action.version + 1,
+        })
+        .where(eq(capaActions.id, action.id));
+      const [changed] = await tx.select().from(capaActions).where(eq(capaActions.id, action.id));
+      if (changed!.ownerId !== action.ownerId) await mailActionOwner(tx, actor, { ...before, version: before.version + 1 }, changed!);
+      return { audit: actionChanges(action, changed!) };
+    },
   });
-  return outcome(actor, after);
 }
 
 const dayMs = 86_400_000;
@@ -376,42 +346,42 @@ const dayMs = 86_400_000;
  * their results documented). The evidence is rich text, cleaned here before it is saved; the audit
  * entry carries the whole saved text (21 CFR 11.10(e)). Files go to the CAPA's Evidence section
  * (lib/attachments). When it is the last open action of the plan, the CAPA notes the time: the
- * recurrence count and the effectiveness period start there.
+ * recurrence count and the effectiveness period start there. The action carries its own version,
+ * so the CAPA's is not asked for.
  */
 export async function completeAction(actor: RecordActor, raw: CompleteActionInput): Promise<CapaOutcome> {
   const input = parseInput(completeActionSchema, raw);
   const evidence = cleanEvidence(input.evidence);
   if (!evidence.ok) throw new ValidationError(evidence.message, { evidence: [evidence.message] });
-  const after = await db.transaction(async (tx) => {
-    const before = await lockCapa(tx, actor, input.id, null, 'capa.read', ['implementation'], 'Completing an action');
-    const action = await lockAction(tx, before, input.actionId);
-    assertCan(actor, 'capa.complete_action', { ownerIds: [action.ownerId] });
-    if (action.version !== input.actionVersion) throw new ConflictError();
-    if (action.completedAt !== null) throw new InvalidTransitionError('This action is already recorded as completed.');
-    const now = new Date();
-    const [result] = await tx
-      .update(capaActions)
-      .set({ completedAt: now, completedBy: actor.id, evidence: evidence.html, version: action.version + 1 })
-      .where(and(eq(capaActions.id, action.id), eq(capaActions.version, action.version)));
-    if (result.affectedRows !== 1) throw new ConflictError();
-    const [done] = await tx.select().from(capaActions).where(eq(capaActions.id, action.id));
-    const actionsOpen = Math.max(0, before.actionsOpen - 1);
-    const days = parseRecurrenceCriterion(before.recurrenceCriterion)?.days;
-    return saveCapa(
-      tx,
-      actor,
-      before,
-      {
-        actionsOpen,
-        ...(actionsOpen === 0
-          ? { actionsCompletedAt: now, effectivenessDueAt: days ? new Date(now.getTime() + days * dayMs) : before.effectivenessDueAt }
-          : {}),
-      },
-      'complete_action',
-      actionChanges(action, done!),
-    );
+  return editRecord(capaKind, {
+    id: input.id,
+    section: 'completion',
+    actor,
+    expectedVersion: null,
+    params: { actionId: input.actionId },
+    action: 'complete_action',
+    async apply(before, { tx, now }) {
+      const action = await currentAction(tx, before, input.actionId);
+      if (action.version !== input.actionVersion) throw new ConflictError();
+      if (action.completedAt !== null) throw new InvalidTransitionError('This action is already recorded as completed.');
+      await tx
+        .update(capaActions)
+        .set({ completedAt: now, completedBy: actor.id, evidence: evidence.html, version: action.version + 1 })
+        .where(eq(capaActions.id, action.id));
+      const [done] = await tx.select().from(capaActions).where(eq(capaActions.id, action.id));
+      const actionsOpen = Math.max(0, before.actionsOpen - 1);
+      const days = parseRecurrenceCriterion(before.recurrenceCriterion)?.days;
+      return {
+        changes: {
+          actionsOpen,
+          ...(actionsOpen === 0
+            ? { actionsCompletedAt: now, effectivenessDueAt: days ? new Date(now.getTime() + days * dayMs) : before.effectivenessDueAt }
+            : {}),
+        },
+        audit: actionChanges(action, done!),
+      };
+    },
   });
-  return outcome(actor, after);
 }
 
 /** The QA approver signs the plan ("approved"); the plan is then fixed for this round. */

@@ -4,8 +4,8 @@ import { db, type DbOrTx } from '../../db/client';
 import { capaActions, capas, capsuleDefects, complaints, deviations, fillingRings, machines, users } from '../../db/schema';
 import type { CapaEventType } from '../../workflows/capa';
 import { can } from '../auth/permissions';
-import { NotFoundError } from '../errors';
-import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
+import { type BlockedEvent, type RecordAbilities, type RecordActor, type SectionOf, abilitiesOf, checkSection } from '../records/kind';
+import { getVisibleRow, loadRelated, signedContentOf } from '../records/write-path';
 import { userIdsInChanges } from '../records/timeline';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';
 import type { AllowedEvent } from '../records/workflow';
@@ -20,7 +20,7 @@ import {
   recordNotEffective,
   startImplementation,
 } from './commands';
-import { type CapaDto, capaKind, capaSignedContent } from './kind';
+import { type CapaDto, capaKind } from './kind';
 import type { CapaActionCategory, CapaActionKind } from './labels';
 import { type RecurrenceEvidence, computeRecurrence } from './recurrence';
 import { type RecurrenceCriterion, capaEventRequestSchema, parseRecurrenceCriterion } from './schemas';
@@ -68,6 +68,10 @@ export interface CapaDetailDto {
   criterion: RecurrenceCriterion | null;
   recurrence: RecurrenceEvidence | null;
   allowedEvents: AllowedEvent<CapaEventType>[];
+  /** Events this person's role sends now but this CAPA refuses them, with the reason (segregation of duties, a guard). */
+  blockedEvents: BlockedEvent<CapaEventType>[];
+  /** Which sections this person may edit now, and why not. */
+  sections: RecordAbilities<CapaEventType, SectionOf<typeof capaKind>>['sections'];
   /** The plan and its actions may be edited by this viewer now. */
   canPlan: boolean;
   history: HistoryEntryDto[];
@@ -98,16 +102,17 @@ async function sourceOf(dbOrTx: DbOrTx, row: typeof capas.$inferSelect): Promise
 }
 
 export async function getCapaDetail(id: number, viewer: RecordActor, dbOrTx: DbOrTx = db, now: Date = new Date()): Promise<CapaDetailDto> {
-  const [row] = await dbOrTx.select().from(capas).where(eq(capas.id, id));
-  if (!row || !can(viewer, capaKind.readPermission, ownerScope(capaKind, row))) throw new NotFoundError('This CAPA');
+  const row = await getVisibleRow(dbOrTx, capaKind, id, viewer);
+  const facts = await loadRelated(capaKind, dbOrTx, row);
+  const abilities = abilitiesOf(capaKind, viewer, row, facts);
 
   const criterion = parseRecurrenceCriterion(row.recurrenceCriterion);
   const [actionRows, source, recurrence, history, signatures, audit] = await Promise.all([
-    dbOrTx.select().from(capaActions).where(eq(capaActions.capaId, row.id)).orderBy(asc(capaActions.round), asc(capaActions.id)),
+    [...facts.actions].sort((a, b) => a.round - b.round || a.id - b.id),
     sourceOf(dbOrTx, row),
     criterion ? computeRecurrence(dbOrTx, criterion, row.actionsCompletedAt, now, row.closedAt) : Promise.resolve(null),
     listStateHistory(dbOrTx, capaKind, row.id),
-    listSignatures(dbOrTx, 'capa', row.id, capaSignedContent(row)),
+    listSignatures(dbOrTx, 'capa', row.id, (meaning) => signedContentOf(capaKind, meaning, row, facts), capaKind.signedPartLabels),
     can(viewer, 'audit.read') ? listAuditTrail(dbOrTx, 'capa', row.id) : Promise.resolve(null),
   ]);
   const names = await namesOf(dbOrTx, [
@@ -119,7 +124,7 @@ export async function getCapaDetail(id: number, viewer: RecordActor, dbOrTx: DbO
       e.changes.filter((c) => /· (ownerId|completedBy)$/.test(c.field)).flatMap((c) => [c.from, c.to].filter((v): v is number => typeof v === 'number')),
     ),
   ]);
-  const canPlan = row.status === 'proposed' && can(viewer, 'capa.plan', ownerScope(capaKind, row));
+  const canPlan = abilities.sections.plan.editable;
 
   return {
     capa: capaKind.toDto(row),
@@ -140,16 +145,12 @@ export async function getCapaDetail(id: number, viewer: RecordActor, dbOrTx: DbO
       completedByName: a.completedBy ? (names[a.completedBy] ?? null) : null,
       evidence: a.evidence,
       overdue: a.completedAt === null && a.dueAt < now && row.status !== 'cancelled',
-      canComplete:
-        row.status === 'implementation' &&
-        a.round === row.planRound &&
-        a.completedAt === null &&
-        can(viewer, 'capa.complete_action', { ownerIds: [a.ownerId] }),
-      canEdit: canPlan && a.round === row.planRound && a.completedAt === null,
+      canComplete: a.round === row.planRound && a.completedAt === null && checkSection(capaKind, viewer, row, facts, 'completion', { actionId: a.id }).ok,
+      canEdit: abilities.sections.actions.editable && a.round === row.planRound && a.completedAt === null,
     })),
     criterion,
     recurrence,
-    allowedEvents: allowedEventsFor(capaKind, viewer, row),
+    ...abilities,
     canPlan,
     history,
     signatures,

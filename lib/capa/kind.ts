@@ -1,17 +1,21 @@
 import 'server-only';
-import { and, eq, inArray } from 'drizzle-orm';
-import type { Tx } from '../../db/client';
-import { capas, users } from '../../db/schema';
+import { asc, eq } from 'drizzle-orm';
+import type { DbOrTx, Tx } from '../../db/client';
+import { capaActions, capas } from '../../db/schema';
 import { capaGuardRefusals, capaMachine } from '../../workflows/capa';
 import type { CapaState } from '../../workflows/states';
-import { getEnv } from '../env';
-import { enqueueMail } from '../mail/outbox';
-import { renderMailLayout } from '../mail/templates/layout';
-import { type RecordActor, defineRecordKind } from '../records/kind';
+import { type Notice, type Recipient, activeUsers, activeUsersWithRole, sendNotice } from '../mail/record-notice';
+import { type EvidenceDigest, listEvidenceDigests } from '../records/facts';
+import { type RecordActor, defineRecordKind, independentPeople } from '../records/kind';
 import { type CapaSource, capaEventLabels, capaStateLabels } from './labels';
 import { mailEffectivenessReviewLinks } from './review-links';
 
-/* CAPAs on the write path: their table, machine, permissions, signed content and mail. */
+/*
+ * CAPAs on the write path: who edits the plan (its owner), who reassigns it, who completes an action
+ * (its owner), who may not approve the plan or judge its effectiveness (the owner, whoever opened
+ * it, the action owners and whoever completed an action), what each signature covers, and mail.
+ * Nothing else in the product restates these rules.
+ */
 
 export type CapaRow = typeof capas.$inferSelect;
 
@@ -107,15 +111,33 @@ export const capaAuditFields = [
   'closedAt',
 ] as const satisfies readonly (keyof CapaRow)[];
 
+export type CapaActionRow = typeof capaActions.$inferSelect;
+
+/** What the CAPA's rules read beyond its row: every action of every round, and the files on it. */
+export interface CapaFacts {
+  actions: CapaActionRow[];
+  evidence: EvidenceDigest[];
+}
+
+async function capaFacts(dbOrTx: DbOrTx, row: CapaRow): Promise<CapaFacts> {
+  const [actions, evidence] = await Promise.all([
+    dbOrTx.select().from(capaActions).where(eq(capaActions.capaId, row.id)).orderBy(asc(capaActions.id)),
+    listEvidenceDigests(dbOrTx, 'capa', row.id),
+  ]);
+  return { actions, evidence };
+}
+
+const currentRound = (row: CapaRow, facts: CapaFacts) => facts.actions.filter((a) => a.round === row.planRound);
+
 /*
- * What a CAPA signature vouches for: the plan (problem, root cause, criteria, owner, which round of
- * the plan). Lifecycle times, counters and the outcome are left out so that completing the actions
- * does not make the plan approval read as "changed after signing" (21 CFR 11.70); the outcome is in
- * the meaning of the signature itself ("effective", "not effective"), and a reason (not effective,
- * cancelled) is recorded with the signature that gives it.
+ * What a CAPA signature vouches for (21 CFR 11.70). The plan approval covers the plan and every
+ * action planned (what, by whom, by when); the effectiveness decision covers that plus how each
+ * action was completed, its evidence and every file's SHA-256. Lifecycle times, counters and the
+ * outcome itself are left out: the outcome is the signature's meaning, and completing the actions
+ * must not make the plan approval read as "changed after signing".
  */
-export function capaSignedContent(row: CapaRow): Record<string, unknown> {
-  return {
+const signedParts = {
+  plan: (row: CapaRow) => ({
     number: row.number,
     title: row.title,
     sourceType: row.sourceType,
@@ -125,74 +147,35 @@ export function capaSignedContent(row: CapaRow): Record<string, unknown> {
     effectivenessCriteria: row.effectivenessCriteria,
     recurrenceCriterion: row.recurrenceCriterion,
     ownerId: row.ownerId,
-    planRound: row.planRound,
-  };
+  }),
+  actions: (facts: CapaFacts) =>
+    facts.actions.map((a) => ({ id: a.id, round: a.round, kind: a.kind, category: a.category, description: a.description, ownerId: a.ownerId, dueAt: a.dueAt })),
+  completion: (facts: CapaFacts) => facts.actions.map((a) => ({ id: a.id, completedAt: a.completedAt, completedBy: a.completedBy, evidence: a.evidence })),
+};
+
+/** States in which the CAPA is still open. */
+const openStates = ['proposed', 'plan_approved', 'implementation', 'effectiveness_check'] as const satisfies readonly CapaState[];
+const ownerOnly = { of: (row: CapaRow) => [row.ownerId] };
+
+/** A notice about this CAPA to staff (lib/mail/record-notice.ts), linking to its page. */
+export function capaNotice(tx: Tx, capa: Pick<CapaRow, 'id' | 'number' | 'version'>, recipients: readonly Recipient[], actor: RecordActor, n: Notice) {
+  return sendNotice(
+    tx,
+    { recordType: 'capa', id: capa.id, version: capa.version, label: capa.number, path: `/capa/${capa.id}`, linkLabel: 'Open the CAPA' },
+    recipients,
+    actor,
+    n,
+  );
 }
 
-export interface Recipient {
-  id: number;
-  email: string;
+/** QA approvers who may sign this step on this CAPA (segregation of duties), to be asked by e-mail. */
+export async function eligibleApprovers(tx: DbOrTx, capa: CapaRow, event: 'approve_plan' | 'record_effective'): Promise<Recipient[]> {
+  return independentPeople(capaKind, capa, await capaFacts(tx, capa), event, await activeUsersWithRole(tx, ['qa_approver']));
 }
 
-export interface CapaMail {
-  key: string;
-  template: string;
-  subject: string;
-  heading: string;
-  paragraphs: string[];
-  footer: string;
-}
-
-/** Queues one message per recipient in the caller's transaction; the actor and duplicates are skipped. */
-export async function mailAboutCapa(
-  tx: Tx,
-  recipients: Recipient[],
-  actor: RecordActor,
-  capa: Pick<CapaRow, 'id' | 'number' | 'version'>,
-  m: CapaMail,
-): Promise<void> {
-  const env = getEnv();
-  const mail = renderMailLayout({
-    siteName: env.SITE_NAME,
-    recordNumber: capa.number,
-    heading: m.heading,
-    paragraphs: m.paragraphs,
-    link: { url: new URL(`/capa/${capa.id}`, env.APP_URL).toString(), label: 'Open the CAPA' },
-    footer: m.footer,
-  });
-  const seen = new Set<number>();
-  for (const r of recipients) {
-    if (r.id === actor.id || seen.has(r.id)) continue;
-    seen.add(r.id);
-    await enqueueMail(tx, {
-      dedupeKey: `${m.key}:${capa.id}:v${capa.version}:${r.id}`,
-      template: m.template,
-      to: { address: r.email, userId: r.id },
-      subject: m.subject,
-      text: mail.text,
-      html: mail.html,
-      recordType: 'capa',
-      recordId: capa.id,
-    });
-  }
-}
-
-export async function activeUsers(tx: Tx, ids: (number | null)[]): Promise<Recipient[]> {
-  const wanted = ids.filter((i): i is number => i !== null);
-  if (wanted.length === 0) return [];
-  return tx
-    .select({ id: users.id, email: users.email })
-    .from(users)
-    .where(and(inArray(users.id, wanted), eq(users.active, true)));
-}
-
-/** QA approvers who may sign this CAPA: active, and not its owner (segregation of duties). */
-export async function eligibleApprovers(tx: Tx, capa: Pick<CapaRow, 'ownerId'>): Promise<Recipient[]> {
-  const approvers = await tx
-    .select({ id: users.id, email: users.email })
-    .from(users)
-    .where(and(eq(users.active, true), eq(users.role, 'qa_approver')));
-  return approvers.filter((a) => a.id !== capa.ownerId);
+function actionIdOf(params: unknown): number | null {
+  const id = (params as { actionId?: unknown } | undefined)?.actionId;
+  return typeof id === 'number' ? id : null;
 }
 
 export const capaKind = defineRecordKind({
@@ -201,6 +184,8 @@ export const capaKind = defineRecordKind({
   table: capas,
   machine: capaMachine,
   readPermission: 'capa.read',
+  owners: (t) => [t.ownerId],
+  related: capaFacts,
   eventPermissions: {
     approve_plan: 'capa.approve',
     start_implementation: 'capa.plan',
@@ -212,20 +197,108 @@ export const capaKind = defineRecordKind({
   eventLabels: capaEventLabels,
   stateLabels: capaStateLabels,
   guardRefusals: capaGuardRefusals,
-  ownerIds: (row) => [row.ownerId],
-  context: (row) => ({
+  context: (row, facts) => ({
     ownerId: row.ownerId,
-    actionsPlanned: row.actionsPlanned,
-    actionsOpen: row.actionsOpen,
+    actionsPlanned: currentRound(row, facts).length,
+    actionsOpen: currentRound(row, facts).filter((a) => a.completedAt === null).length,
     criteriaWritten: Boolean(row.effectivenessCriteria?.trim()),
   }),
-  signedContent: capaSignedContent,
+  participants: {
+    owner: { did: 'own this CAPA', of: (row) => [row.ownerId] },
+    creator: { did: 'opened this CAPA', of: (row) => [row.createdBy] },
+    actionOwner: { did: 'own one of its actions', of: (_row, facts) => facts.actions.map((a) => a.ownerId) },
+    actionCompleter: { did: 'completed one of its actions', of: (_row, facts) => facts.actions.map((a) => a.completedBy) },
+  },
+  // Nobody approves a plan, or judges the effectiveness of work, that is theirs (ICH Q10 3.2.2).
+  independence: {
+    approve_plan: ['owner', 'creator', 'actionOwner'],
+    record_effective: ['owner', 'creator', 'actionOwner', 'actionCompleter'],
+    record_not_effective: ['owner', 'creator', 'actionOwner', 'actionCompleter'],
+    cancel: ['owner'],
+  },
+  sections: {
+    plan: {
+      label: 'Editing the plan',
+      permission: 'capa.plan',
+      states: ['proposed'],
+      holders: { ...ownerOnly, refusal: 'Only the owner of this CAPA edits its plan; a QA approver can reassign it.' },
+    },
+    actions: {
+      label: 'Planning the actions',
+      permission: 'capa.plan',
+      states: ['proposed'],
+      holders: { ...ownerOnly, refusal: 'Only the owner of this CAPA plans its actions; a QA approver can reassign it.' },
+    },
+    approval_request: {
+      label: 'Asking for the plan’s approval',
+      permission: 'capa.plan',
+      states: ['proposed'],
+      holders: { ...ownerOnly, refusal: 'Only the owner of this CAPA asks for its plan to be approved.' },
+      bumpsVersion: false,
+    },
+    owner: { label: 'Reassigning the owner', permission: 'capa.reassign', states: openStates },
+    // 21 CFR 820.100(a)(7): the activities and their results are documented by those who did them.
+    completion: {
+      label: 'Completing an action',
+      permission: 'capa.complete_action',
+      states: ['implementation'],
+      ownScope: {
+        of: (row, facts, params) =>
+          currentRound(row, facts)
+            .filter((a) => (actionIdOf(params) === null ? a.completedAt === null : a.id === actionIdOf(params)))
+            .map((a) => a.ownerId),
+        refusal: 'Only the owner of this action records it as completed.',
+      },
+    },
+    evidence: {
+      label: 'Adding evidence',
+      permission: 'attachment.add',
+      states: openStates,
+      stateRefusal: 'Evidence can no longer be added once a CAPA is closed or cancelled. Raise a new record if something new turns up.',
+      ownScope: {
+        of: (row, facts) =>
+          row.status === 'plan_approved' || row.status === 'implementation'
+            ? [row.ownerId, ...currentRound(row, facts).map((a) => a.ownerId)]
+            : [row.ownerId],
+        refusal: 'Only the CAPA owner, QA and, once the plan is approved, the owners of its actions add evidence to it.',
+      },
+    },
+    review_link: {
+      label: 'Asking for a fresh review link',
+      permission: 'capa.approve',
+      states: ['effectiveness_check'],
+      independentOf: ['owner', 'creator', 'actionOwner', 'actionCompleter'],
+      bumpsVersion: false,
+    },
+    comments: { label: 'Commenting', permission: 'capa.read', states: 'any', bumpsVersion: false },
+  },
+  signedContent: {
+    approved: (row, facts) => ({ plan: signedParts.plan(row), actions: signedParts.actions(facts) }),
+    effective: (row, facts) => ({
+      plan: signedParts.plan(row),
+      actions: signedParts.actions(facts),
+      completion: signedParts.completion(facts),
+      evidence: facts.evidence,
+    }),
+    not_effective: (row, facts) => ({
+      plan: signedParts.plan(row),
+      actions: signedParts.actions(facts),
+      completion: signedParts.completion(facts),
+      evidence: facts.evidence,
+    }),
+  },
+  signedPartLabels: {
+    plan: 'the plan',
+    actions: 'the planned actions',
+    completion: 'how the actions were completed',
+    evidence: 'the evidence files',
+  },
   auditFields: capaAuditFields,
   toDto: toCapaDto,
   effects: {
     notifyOwnerAssigned: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await activeUsers(tx, [after.ownerId]), actor, after, {
+        await capaNotice(tx, after, await activeUsers(tx, [after.ownerId]), actor, {
           key: 'capa-owner',
           template: 'capa_owner_assigned',
           subject: `CAPA ${after.number} assigned to you`,
@@ -240,7 +313,7 @@ export const capaKind = defineRecordKind({
     },
     notifyPlanApproved: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await activeUsers(tx, [after.ownerId]), actor, after, {
+        await capaNotice(tx, after, await activeUsers(tx, [after.ownerId]), actor, {
           key: 'capa-plan-approved',
           template: 'capa_plan_approved',
           subject: `CAPA ${after.number}: plan approved`,
@@ -253,12 +326,12 @@ export const capaKind = defineRecordKind({
     notifyEffectivenessReview: {
       async inTransaction(tx, { actor, after }) {
         // A personal one-time review link per approver (lib/capa/review-links.ts), not a plain link.
-        await mailEffectivenessReviewLinks(tx, actor.name, after, await eligibleApprovers(tx, after));
+        await mailEffectivenessReviewLinks(tx, actor.name, after, await eligibleApprovers(tx, after, 'record_effective'));
       },
     },
     notifyClosed: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await activeUsers(tx, [after.ownerId, after.createdBy]), actor, after, {
+        await capaNotice(tx, after, await activeUsers(tx, [after.ownerId, after.createdBy]), actor, {
           key: 'capa-closed',
           template: 'capa_closed',
           subject: `CAPA ${after.number} closed as effective`,
@@ -270,7 +343,7 @@ export const capaKind = defineRecordKind({
     },
     notifyNotEffective: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await activeUsers(tx, [after.ownerId]), actor, after, {
+        await capaNotice(tx, after, await activeUsers(tx, [after.ownerId]), actor, {
           key: 'capa-not-effective',
           template: 'capa_returned',
           subject: `CAPA ${after.number} was not effective: plan new actions`,
@@ -286,7 +359,7 @@ export const capaKind = defineRecordKind({
     },
     notifyCancelled: {
       async inTransaction(tx, { actor, after }) {
-        await mailAboutCapa(tx, await activeUsers(tx, [after.ownerId, after.createdBy]), actor, after, {
+        await capaNotice(tx, after, await activeUsers(tx, [after.ownerId, after.createdBy]), actor, {
           key: 'capa-cancelled',
           template: 'capa_cancelled',
           subject: `CAPA ${after.number} cancelled`,
@@ -299,14 +372,14 @@ export const capaKind = defineRecordKind({
   },
 });
 
-export function planApprovalMail(actor: RecordActor, after: CapaRow): CapaMail {
+export function planApprovalMail(actor: RecordActor, after: CapaRow, actionsPlanned: number): Notice {
   return {
     key: 'capa-plan-approval',
     template: 'capa_plan_approval_requested',
     subject: `CAPA ${after.number}: plan awaits approval`,
     heading: `The plan of ${after.number} awaits approval`,
     paragraphs: [
-      `${actor.name} asks for approval of the plan of ${after.number}: ${after.title} (${after.actionsPlanned} action${after.actionsPlanned === 1 ? '' : 's'}).`,
+      `${actor.name} asks for approval of the plan of ${after.number}: ${after.title} (${actionsPlanned} action${actionsPlanned === 1 ? '' : 's'}).`,
       'Read the problem, the root cause, the actions and the effectiveness criteria, then approve and sign the plan.',
     ],
     footer: 'You receive this because you are a QA approver who does not own this CAPA.',

@@ -4,14 +4,14 @@ import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
 import { capas, users } from '../../db/schema';
 import { type TokenBinding, type TokenProblem, checkActionToken, consumeActionToken, tokenProblemTexts } from '../action-tokens';
-import { writeAudit } from '../audit';
-import { can } from '../auth/permissions';
-import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError } from '../errors';
-import type { RecordActor } from '../records/kind';
+import { ConflictError, ForbiddenError, NotFoundError } from '../errors';
+import { type RecordActor, checkSection } from '../records/kind';
+import { editRecord, loadRelated } from '../records/write-path';
 import { parseInput } from '../validation/parse';
 import { type CapaOutcome, recordEffective, recordNotEffective } from './commands';
 import { type CapaDetailDto, getCapaDetail } from './detail';
 import { capaStateLabels } from './labels';
+import { capaKind } from './kind';
 import { effectivenessReviewAction, mailReviewLink } from './review-links';
 
 /*
@@ -35,8 +35,9 @@ export type FreshLinkVerdict = { allowed: true } | { allowed: false; why: string
 const noRecordWhy =
   'This link does not say which CAPA it was for, so no fresh one can be sent from here. A QA approver can also review and sign a CAPA in the effectiveness check from its own page.';
 
+/** Whether the kind's rules let this person ask for a fresh link now (lib/capa/kind.ts, section review_link). */
 async function freshLinkVerdict(database: DbOrTx, viewer: RecordActor, capaId: number): Promise<FreshLinkVerdict> {
-  const [row] = await database.select({ status: capas.status, ownerId: capas.ownerId }).from(capas).where(eq(capas.id, capaId));
+  const [row] = await database.select().from(capas).where(eq(capas.id, capaId));
   if (!row) return { allowed: false, why: noRecordWhy };
   if (row.status !== 'effectiveness_check') {
     return {
@@ -44,9 +45,8 @@ async function freshLinkVerdict(database: DbOrTx, viewer: RecordActor, capaId: n
       why: `Its state is now “${capaStateLabels[row.status]}”: it no longer awaits an effectiveness review, so there is nothing to send a link for.`,
     };
   }
-  if (!can(viewer, 'capa.approve')) return { allowed: false, why: 'Only a QA approver reviews an effectiveness check; your role does not.' };
-  if (row.ownerId === viewer.id) return { allowed: false, why: 'You own this CAPA; another QA approver reviews it (segregation of duties).' };
-  return { allowed: true };
+  const check = checkSection(capaKind, viewer, row, await loadRelated(capaKind, database, row), 'review_link');
+  return check.ok ? { allowed: true } : { allowed: false, why: check.reason };
 }
 
 export type ReviewLinkView =
@@ -129,27 +129,25 @@ export async function requestFreshReviewLink(actor: RecordActor, raw: { token: s
   if (!binding || binding.recordType !== 'capa' || binding.action !== effectivenessReviewAction) {
     throw new ForbiddenError(noRecordWhy);
   }
-  return db.transaction(async (tx) => {
-    const [capa] = await tx.select().from(capas).where(eq(capas.id, binding.recordId)).for('update');
-    if (!capa) throw new NotFoundError('This CAPA');
-    const verdict = await freshLinkVerdict(tx, actor, capa.id);
-    if (!verdict.allowed) throw capa.status === 'effectiveness_check' ? new ForbiddenError(verdict.why) : new InvalidTransitionError(verdict.why);
-    const [reviewer] = await tx
-      .select({ id: users.id, email: users.email })
-      .from(users)
-      .where(and(eq(users.id, actor.id), eq(users.active, true)));
-    if (!reviewer) throw new NotFoundError('Your account');
-    const { expiresAt } = await mailReviewLink(tx, capa, reviewer, {
-      intro: `You asked for a fresh link to review the effectiveness check of ${capa.number}: ${capa.title}. Earlier links to it no longer work.`,
-    });
+  // The CAPA's rules decide (section review_link): the state (409), the role and independence (403).
+  const outcome = await editRecord(capaKind, {
+    id: binding.recordId,
+    section: 'review_link',
+    actor,
+    expectedVersion: null,
     // Who asked, and when; never the token.
-    await writeAudit(tx, {
-      actor: { id: actor.id, name: actor.name },
-      recordType: 'capa',
-      recordId: capa.id,
-      action: 'review_link_requested',
-      changes: [],
-    });
-    return { email: reviewer.email, expiresAt: expiresAt.toISOString() };
+    action: 'review_link_requested',
+    async apply(capa, { tx }) {
+      const [reviewer] = await tx
+        .select({ id: users.id, email: users.email })
+        .from(users)
+        .where(and(eq(users.id, actor.id), eq(users.active, true)));
+      if (!reviewer) throw new NotFoundError('Your account');
+      const { expiresAt } = await mailReviewLink(tx, capa, reviewer, {
+        intro: `You asked for a fresh link to review the effectiveness check of ${capa.number}: ${capa.title}. Earlier links to it no longer work.`,
+      });
+      return { result: { email: reviewer.email, expiresAt: expiresAt.toISOString() } };
+    },
   });
+  return outcome.result!;
 }

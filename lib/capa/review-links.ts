@@ -4,7 +4,8 @@ import { issueActionToken } from '../action-tokens';
 import { getEnv } from '../env';
 import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
-import type { CapaRow, Recipient } from './kind';
+import type { Recipient } from '../mail/record-notice';
+import type { CapaRow } from './kind';
 
 /*
  * Personal review links for a CAPA's effectiveness check. Each eligible QA approver gets an e-mail

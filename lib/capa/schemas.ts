@@ -146,12 +146,21 @@ export const updatePlanSchema = z
     problemStatement,
     rootCause: optionalText(10_000, 'Keep the root cause under 10,000 characters.'),
     effectivenessCriteria: optionalText(5000, 'Keep the effectiveness criteria under 5,000 characters.'),
-    ownerId: id,
+    /** Accepted only when it names the current owner; reassigning is reassignOwnerSchema. */
+    ownerId: optionalId,
     dueAt: optionalDay('Enter the due date.'),
     ...criterionFields,
   })
   .superRefine(checkCriterion);
 export type UpdatePlanInput = z.input<typeof updatePlanSchema>;
+
+export const reassignOwnerSchema = z.object({
+  id,
+  version,
+  ownerId: z.preprocess(blankToUndefined, z.coerce.number({ error: 'Pick the new owner.' }).int().positive()),
+  reason,
+});
+export type ReassignOwnerInput = z.input<typeof reassignOwnerSchema>;
 
 const actionFields = {
   kind: z.enum(capaActionKinds, { error: 'Say whether the action is corrective or preventive.' }),

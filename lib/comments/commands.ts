@@ -1,21 +1,22 @@
 import 'server-only';
 import { and, eq, like } from 'drizzle-orm';
-import { db, type Db, type Tx } from '../../db/client';
+import type { Tx } from '../../db/client';
 import { comments, users } from '../../db/schema';
-import { writeAudit } from '../audit';
 import { getRecordAccess, type RecordAccess } from '../attachments/record-access';
 import { getEnv } from '../env';
-import { ValidationError } from '../errors';
+import { NotFoundError, ValidationError } from '../errors';
 import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
+import { evidenceKinds, isEvidenceRecordType, missingNoun } from '../record-kinds';
 import type { RecordActor } from '../records/kind';
+import { editRecord } from '../records/write-path';
 import type { RecordType } from '../records/types';
 import { parseInput } from '../validation/parse';
 import { type CommentBodyInput, commentBodySchema, extractMentions, maxMentions } from './mentions';
 import type { CommentDto } from './queries';
 
 /*
- * Adding a comment: anyone who may read the record may comment on it, in any state (a closed record
+ * Adding a comment: anyone who may see the record may comment on it, in any state (a closed record
  * still gathers questions). The comment, its audit entry and one e-mail per person mentioned are
  * written in one transaction, so a mention is mailed if and only if the comment is kept. Comments
  * are never edited or deleted (21 CFR 11.10(e): the record of what was said stays as it was said).
@@ -65,50 +66,56 @@ function excerpt(body: string): string {
   return body.length <= 1200 ? body : `${body.slice(0, 1200)}…`;
 }
 
-export async function addComment(actor: RecordActor, raw: AddCommentInput, database: Db = db): Promise<CommentDto> {
+export async function addComment(actor: RecordActor, raw: AddCommentInput): Promise<CommentDto> {
   const { body } = parseInput(commentBodySchema, raw);
   const { recordType, recordId } = raw;
   const handles = extractMentions(body);
+  if (!isEvidenceRecordType(recordType)) throw new NotFoundError(missingNoun(recordType));
 
-  const comment = await database.transaction(async (tx) => {
-    const access = await getRecordAccess(tx, recordType, recordId, actor);
-    const mentioned = await resolveMentions(tx, handles, access);
-    const [row] = await tx.insert(comments).values({ recordType, recordId, userId: actor.id, body }).$returningId();
-    const id = row!.id;
-    await writeAudit(tx, {
-      actor: { id: actor.id, name: actor.name },
-      recordType,
-      recordId,
-      action: 'comment',
-      changes: [{ field: 'comment', from: null, to: { id, body, mentions: mentioned.map((m) => ({ id: m.id, name: m.name })) } }],
-    });
+  // On the record's own write path (its "comments" section): a comment needs only that the person
+  // may see the record, in any state, and does not change its version.
+  const outcome = await editRecord(evidenceKinds[recordType].kind, {
+    id: recordId,
+    section: 'comments',
+    actor,
+    expectedVersion: null,
+    action: 'comment',
+    async apply(_row, { tx }) {
+      const access = await getRecordAccess(tx, recordType, recordId, actor);
+      const mentioned = await resolveMentions(tx, handles, access);
+      const [row] = await tx.insert(comments).values({ recordType, recordId, userId: actor.id, body }).$returningId();
+      const id = row!.id;
 
-    const env = getEnv();
-    const url = new URL(`${access.path}#comments`, env.APP_URL).toString();
-    for (const person of mentioned) {
-      // The writer knows what they wrote.
-      if (person.id === actor.id) continue;
-      const mail = renderMailLayout({
-        siteName: env.SITE_NAME,
-        recordNumber: access.label,
-        heading: `${actor.name} mentioned you`,
-        paragraphs: [`${actor.name} mentioned you in a comment on “${access.title}”:`, excerpt(body)],
-        link: { url, label: 'Open the comments' },
-        footer: 'You get this message because someone mentioned you with @. Replies are not read; answer in the comments.',
-      });
-      await enqueueMail(tx, {
-        dedupeKey: `comment:${id}:mention:${person.id}`,
-        template: 'comment_mention',
-        to: { address: person.email, userId: person.id },
-        subject: `${access.label}: ${actor.name} mentioned you`,
-        text: mail.text,
-        html: mail.html,
-        recordType,
-        recordId,
-      });
-    }
-    const [saved] = await tx.select({ at: comments.createdAt }).from(comments).where(eq(comments.id, id));
-    return { id, userId: actor.id, userName: actor.name, body, at: saved!.at.toISOString() };
+      const env = getEnv();
+      const url = new URL(`${access.path}#comments`, env.APP_URL).toString();
+      for (const person of mentioned) {
+        // The writer knows what they wrote.
+        if (person.id === actor.id) continue;
+        const mail = renderMailLayout({
+          siteName: env.SITE_NAME,
+          recordNumber: access.label,
+          heading: `${actor.name} mentioned you`,
+          paragraphs: [`${actor.name} mentioned you in a comment on “${access.title}”:`, excerpt(body)],
+          link: { url, label: 'Open the comments' },
+          footer: 'You get this message because someone mentioned you with @. Replies are not read; answer in the comments.',
+        });
+        await enqueueMail(tx, {
+          dedupeKey: `comment:${id}:mention:${person.id}`,
+          template: 'comment_mention',
+          to: { address: person.email, userId: person.id },
+          subject: `${access.label}: ${actor.name} mentioned you`,
+          text: mail.text,
+          html: mail.html,
+          recordType,
+          recordId,
+        });
+      }
+      const [saved] = await tx.select({ at: comments.createdAt }).from(comments).where(eq(comments.id, id));
+      return {
+        audit: [{ field: 'comment', from: null, to: { id, body, mentions: mentioned.map((m) => ({ id: m.id, name: m.name })) } }],
+        result: { id, userId: actor.id, userName: actor.name, body, at: saved!.at.toISOString() } satisfies CommentDto,
+      };
+    },
   });
-  return comment;
+  return outcome.result!;
 }

@@ -8,8 +8,8 @@ import { roleLabels } from '../auth/roles';
 import { isoDateOfInstant, todayIn } from '../clocks/dates';
 import { type DeviationRowDto, listDeviations } from '../deviations/queries';
 import { getEnv } from '../env';
-import { NotFoundError } from '../errors';
-import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
+import { type BlockedEvent, type RecordActor, abilitiesOf, ownerIdsOf } from '../records/kind';
+import { getVisibleRow, loadRelated, signedContentOf } from '../records/write-path';
 import { userIdsInChanges } from '../records/timeline';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';
 import { sanitizeRichText } from '../rich-text/sanitize';
@@ -28,7 +28,7 @@ import {
   startAssessment,
 } from './commands';
 import { type ReportCountdown, reportCountdown } from './deadline';
-import { type ComplaintDto, complaintKind, complaintSignedContent, personalFields } from './kind';
+import { type ComplaintDto, complaintKind, personalFields } from './kind';
 import { complaintLinkRelations } from './labels';
 import { draftLetterHtml } from './letter';
 import { categoryLabel } from './queries';
@@ -87,6 +87,8 @@ export interface ComplaintDetailDto {
   /** Deviations of the same lot, filler and ring, newest first (null when the lot is unknown or the viewer may not read deviations). */
   batchDeviations: { sameLot: DeviationRowDto[]; sameMachine: DeviationRowDto[]; sameRing: DeviationRowDto[] } | null;
   allowedEvents: AllowedEvent<ComplaintEventType>[];
+  /** Events this person's role sends now but this complaint refuses them, with the reason (segregation of duties, a guard). */
+  blockedEvents: BlockedEvent<ComplaintEventType>[];
   can: { assess: boolean; investigate: boolean; respond: boolean; recordReport: boolean; raiseCapa: boolean; addEvidence: boolean };
   history: HistoryEntryDto[];
   signatures: SignatureDto[];
@@ -154,9 +156,9 @@ async function deviationsBeside(
 }
 
 export async function getComplaintDetail(id: number, viewer: RecordActor, dbOrTx: DbOrTx = db, now: Date = new Date()): Promise<ComplaintDetailDto> {
-  const [row] = await dbOrTx.select().from(complaints).where(eq(complaints.id, id));
-  const scope = row ? ownerScope(complaintKind, row) : null;
-  if (!row || !scope || !can(viewer, complaintKind.readPermission, scope)) throw new NotFoundError('This complaint');
+  const row = await getVisibleRow(dbOrTx, complaintKind, id, viewer);
+  const facts = await loadRelated(complaintKind, dbOrTx, row);
+  const { allowedEvents, blockedEvents, sections } = abilitiesOf(complaintKind, viewer, row, facts);
 
   const [productRow] = row.productId
     ? await dbOrTx
@@ -196,12 +198,12 @@ export async function getComplaintDetail(id: number, viewer: RecordActor, dbOrTx
     : null;
   const [defect] = row.defectId ? await dbOrTx.select({ name: capsuleDefects.name }).from(capsuleDefects).where(eq(capsuleDefects.id, row.defectId)) : [];
 
-  const mayReadPersonal = can(viewer, 'complaint.read_personal', scope);
+  const mayReadPersonal = can(viewer, 'complaint.read_personal', { ownerIds: ownerIdsOf(complaintKind, row) });
   const showInvestigation = row.status !== 'received' && row.status !== 'assessment';
   const [links, history, signatures, rawAudit, batchDeviations, timeZone] = await Promise.all([
     listComplaintLinks(dbOrTx, row.id),
     listStateHistory(dbOrTx, complaintKind, row.id),
-    listSignatures(dbOrTx, 'complaint', row.id, complaintSignedContent(row)),
+    listSignatures(dbOrTx, 'complaint', row.id, (meaning) => signedContentOf(complaintKind, meaning, row, facts), complaintKind.signedPartLabels),
     can(viewer, 'audit.read') ? listAuditTrail(dbOrTx, 'complaint', row.id) : Promise.resolve(null),
     batch && showInvestigation && can(viewer, 'deviation.read') ? deviationsBeside(viewer, batch) : Promise.resolve(null),
     getSiteTimeZone(dbOrTx),
@@ -235,7 +237,6 @@ export async function getComplaintDetail(id: number, viewer: RecordActor, dbOrTx
   }
 
   const today = todayIn(timeZone, now);
-  const qaScope = ownerScope(complaintKind, row);
   return {
     complaint: complaintKind.toDto(row),
     personal,
@@ -252,15 +253,17 @@ export async function getComplaintDetail(id: number, viewer: RecordActor, dbOrTx
     sentByName: row.responseSentBy ? (names[row.responseSentBy] ?? null) : null,
     links,
     batchDeviations,
-    allowedEvents: allowedEventsFor(complaintKind, viewer, row),
+    allowedEvents,
+    blockedEvents,
+    // Each form is offered exactly when the complaint's rules (lib/complaints/kind.ts) accept it.
     can: {
-      assess: row.status === 'assessment' && can(viewer, 'complaint.assess', qaScope),
-      investigate: row.status === 'investigation' && can(viewer, 'complaint.assess', qaScope),
-      raiseCapa: row.status === 'investigation' && can(viewer, 'complaint.assess', qaScope) && can(viewer, 'capa.create'),
-      respond: row.status === 'response' && row.responseSentAt === null && can(viewer, 'complaint.respond', qaScope) && mayReadPersonal,
-      recordReport:
-        Boolean(row.reportable) && row.reportSubmittedAt === null && row.status !== 'received' && row.status !== 'assessment' && can(viewer, 'complaint.respond', qaScope),
-      addEvidence: row.status !== 'closed' && can(viewer, 'attachment.add', qaScope),
+      assess: sections.assessment.editable,
+      investigate: sections.investigation.editable,
+      raiseCapa: sections.links.editable && can(viewer, 'capa.create'),
+      // The letter is personal data: only those who may read it write it.
+      respond: sections.response.editable && mayReadPersonal,
+      recordReport: sections.report.editable && row.reportSubmittedAt === null,
+      addEvidence: sections.evidence.editable,
     },
     history,
     signatures,

@@ -1,19 +1,21 @@
 import 'server-only';
-import { and, eq, inArray } from 'drizzle-orm';
-import type { Tx } from '../../db/client';
-import { complaints, users } from '../../db/schema';
+import { and, asc, eq } from 'drizzle-orm';
+import type { DbOrTx, Tx } from '../../db/client';
+import { complaints, recordLinks } from '../../db/schema';
 import { complaintGuardRefusals, complaintMachine } from '../../workflows/complaint';
 import type { ComplaintState } from '../../workflows/states';
 import type { RegulatoryClockKind } from '../clocks/regulatory';
-import { getEnv } from '../env';
-import { enqueueMail } from '../mail/outbox';
-import { renderMailLayout } from '../mail/templates/layout';
-import { type RecordActor, defineRecordKind } from '../records/kind';
+import { type Notice, type Recipient, activeUsers, activeUsersWithRole, sendNotice } from '../mail/record-notice';
+import { type EvidenceDigest, type SignerFact, editorsOf, listEvidenceDigests, listSigners } from '../records/facts';
+import { type RecordActor, defineRecordKind, independentPeople } from '../records/kind';
 import { isRichTextEmpty } from '../rich-text/sanitize';
 import { type ComplainantKind, type IntakeChannel, complaintEventLabels, complaintStateLabels, qualityDefectPossible } from './labels';
 
 /*
- * Complaints on the write path: their table, machine, permissions, signed content and mail.
+ * Complaints on the write path: who sees one (an operator, the ones they took down), who edits which
+ * section in which state, who may not close it (whoever took it down, owns it, decided its
+ * reportability, signed its investigation, or wrote or sent the answer), what each signature
+ * covers, and mail. Nothing else in the product restates these rules.
  *
  * Personal data (the complainant's name and contact, how a person was harmed, and the letter, which
  * is addressed to them) never enters ComplaintDto: the DTO is what the write path hands back to any
@@ -161,23 +163,59 @@ export const complaintAuditFields = [
   'closedAt',
 ] as const satisfies readonly (keyof ComplaintRow)[];
 
+/** What the complaint's rules read beyond its row: its links, who signed it, who wrote the answer, its files. */
+export interface ComplaintFacts {
+  links: { toType: string; toId: number; relation: string }[];
+  signers: SignerFact[];
+  /** Everyone who saved a version of the letter. */
+  responseWriters: number[];
+  evidence: EvidenceDigest[];
+}
+
+/** The audit actions that write the letter (lib/complaints/commands.ts). */
+export const responseWritingActions = ['write_response'] as const;
+
+async function complaintFacts(dbOrTx: DbOrTx, row: ComplaintRow): Promise<ComplaintFacts> {
+  const [links, signers, responseWriters, evidence] = await Promise.all([
+    dbOrTx
+      .select({ toType: recordLinks.toType, toId: recordLinks.toId, relation: recordLinks.relation })
+      .from(recordLinks)
+      .where(and(eq(recordLinks.fromType, 'complaint'), eq(recordLinks.fromId, row.id)))
+      .orderBy(asc(recordLinks.id)),
+    listSigners(dbOrTx, 'complaint', row.id),
+    editorsOf(dbOrTx, 'complaint', row.id, responseWritingActions),
+    listEvidenceDigests(dbOrTx, 'complaint', row.id),
+  ]);
+  return { links, signers, responseWriters, evidence };
+}
+
+const signersWith = (facts: ComplaintFacts, meaning: string) => facts.signers.filter((s) => s.meaning === meaning).map((s) => s.userId);
+
 /*
- * What a complaint signature vouches for: the facts as received and the assessment (category,
- * adverse event, seriousness, reportability and its deadline, rationale). The investigation and the
- * letter are written after the assessment is signed; binding them here would make that earlier
- * signature read as "changed after signing" (21 CFR 11.70). They are kept, field by field, in the
- * audit trail of the transition each later signature belongs to.
+ * What a complaint signature vouches for (21 CFR 11.70): the reportability decision covers the
+ * complaint as received and the assessment; "investigation complete" adds the investigation (samples,
+ * summary, linked records) and every file's SHA-256; the closing approval adds the answer as sent.
+ * Personal data is covered too: only its hash is kept with the signature. Lifecycle times and the
+ * report's submission date (which may follow the closing) are left out.
  */
-export function complaintSignedContent(row: ComplaintRow): Record<string, unknown> {
-  return {
+const signedParts = {
+  intake: (row: ComplaintRow) => ({
     number: row.number,
     receivedOn: row.receivedOn,
+    channel: row.channel,
+    complainantName: row.complainantName,
+    complainantContact: row.complainantContact,
+    complainantKind: row.complainantKind,
     productId: row.productId,
     batchId: row.batchId,
     lotAsReported: row.lotAsReported,
     description: row.description,
     unitsAffected: row.unitsAffected,
     personHarmed: row.personHarmed,
+    harmDescription: row.harmDescription,
+    samplesReturning: row.samplesReturning,
+  }),
+  assessment: (row: ComplaintRow) => ({
     category: row.category,
     adverseEvent: row.adverseEvent,
     seriousAdverseEvent: row.seriousAdverseEvent,
@@ -185,8 +223,19 @@ export function complaintSignedContent(row: ComplaintRow): Record<string, unknow
     reportKind: row.reportKind,
     reportDueOn: row.reportDueOn,
     assessmentRationale: row.assessmentRationale,
-  };
-}
+    investigationSkipReason: row.investigationSkipReason,
+  }),
+  investigation: (row: ComplaintRow, facts: ComplaintFacts) => ({
+    retainedSamplesChecked: row.retainedSamplesChecked,
+    retainedSamplesNote: row.retainedSamplesNote,
+    investigationSummary: row.investigationSummary,
+    links: facts.links,
+  }),
+  response: (row: ComplaintRow) => ({ responseChannel: row.responseChannel, responseSentText: row.responseSentText }),
+};
+
+/** States in which the complaint still takes evidence. */
+const openStates = ['received', 'assessment', 'investigation', 'response'] as const satisfies readonly ComplaintState[];
 
 export function isAssessmentRecorded(row: ComplaintRow): boolean {
   if (!row.category || row.adverseEvent === null || row.reportable === null || !row.assessmentRationale?.trim()) return false;
@@ -198,58 +247,24 @@ export function isInvestigationRecorded(row: ComplaintRow): boolean {
   return row.retainedSamplesChecked !== null && Boolean(row.investigationSummary?.trim());
 }
 
-export interface Recipient {
-  id: number;
-  email: string;
-}
-
-async function activeUsersWith(tx: Tx, where: { ids?: (number | null)[]; role?: 'qa_investigator' | 'qa_approver' }): Promise<Recipient[]> {
-  const ids = (where.ids ?? []).filter((i): i is number => i !== null);
-  if (where.ids && ids.length === 0) return [];
-  return tx
-    .select({ id: users.id, email: users.email })
-    .from(users)
-    .where(and(eq(users.active, true), where.role ? eq(users.role, where.role) : undefined, where.ids ? inArray(users.id, ids) : undefined));
-}
-
 /*
  * Notices to staff name the record, never the complainant: a mailbox is not the place for personal
  * data, and the link leads to the page, which shows it to those allowed to see it.
  */
-export async function mailStaffAboutComplaint(
-  tx: Tx,
-  recipients: Recipient[],
-  actor: RecordActor,
-  row: Pick<ComplaintRow, 'id' | 'number' | 'version'>,
-  m: { key: string; template: string; subject: string; heading: string; paragraphs: string[]; footer: string },
-): Promise<void> {
-  const env = getEnv();
-  const mail = renderMailLayout({
-    siteName: env.SITE_NAME,
-    recordNumber: row.number,
-    heading: m.heading,
-    paragraphs: m.paragraphs,
-    link: { url: new URL(`/complaints/${row.id}`, env.APP_URL).toString(), label: 'Open the complaint' },
-    footer: m.footer,
-  });
-  const seen = new Set<number>();
-  for (const r of recipients) {
-    if (r.id === actor.id || seen.has(r.id)) continue;
-    seen.add(r.id);
-    await enqueueMail(tx, {
-      dedupeKey: `${m.key}:${row.id}:v${row.version}:${r.id}`,
-      template: m.template,
-      to: { address: r.email, userId: r.id },
-      subject: m.subject,
-      text: mail.text,
-      html: mail.html,
-      recordType: 'complaint',
-      recordId: row.id,
-    });
-  }
+export function complaintNotice(tx: Tx, row: Pick<ComplaintRow, 'id' | 'number' | 'version'>, recipients: readonly Recipient[], actor: RecordActor, n: Notice) {
+  return sendNotice(
+    tx,
+    { recordType: 'complaint', id: row.id, version: row.version, label: row.number, path: `/complaints/${row.id}`, linkLabel: 'Open the complaint' },
+    recipients,
+    actor,
+    n,
+  );
 }
 
-export { activeUsersWith };
+/** QA approvers who may close this complaint (segregation of duties), to be told it can be closed. */
+export async function eligibleClosers(tx: DbOrTx, row: ComplaintRow): Promise<Recipient[]> {
+  return independentPeople(complaintKind, row, await complaintFacts(tx, row), 'close', await activeUsersWithRole(tx, ['qa_approver']));
+}
 
 export const complaintKind = defineRecordKind({
   recordType: 'complaint',
@@ -270,7 +285,8 @@ export const complaintKind = defineRecordKind({
   stateLabels: complaintStateLabels,
   guardRefusals: complaintGuardRefusals,
   // 'own' for an operator: the complaints they entered.
-  ownerIds: (row) => [row.createdBy, row.ownerId],
+  owners: (t) => [t.createdBy, t.ownerId],
+  related: complaintFacts,
   context: (row) => ({
     ownerId: row.ownerId,
     assessmentRecorded: isAssessmentRecorded(row),
@@ -278,13 +294,69 @@ export const complaintKind = defineRecordKind({
     investigationRecorded: isInvestigationRecorded(row),
     responseSent: row.responseSentAt !== null,
   }),
-  signedContent: complaintSignedContent,
+  participants: {
+    intake: { did: 'took this complaint down', of: (row) => [row.createdBy] },
+    owner: { did: 'own this complaint', of: (row) => [row.ownerId] },
+    decider: { did: 'decided its reportability', of: (row, facts) => [row.reportabilityDecidedBy, ...signersWith(facts, 'reportability_decided')] },
+    investigationSigner: { did: 'signed its investigation', of: (_row, facts) => signersWith(facts, 'investigation_complete') },
+    responder: { did: 'wrote or sent its answer', of: (row, facts) => [row.responseSentBy, ...facts.responseWriters] },
+  },
+  // The closing approval is a second person's review of the whole file (21 CFR 211.198(a); EU GMP Chapter 8).
+  independence: { close: ['intake', 'owner', 'decider', 'investigationSigner', 'responder'] },
+  sections: {
+    assessment: { label: 'Recording the assessment', permission: 'complaint.assess', states: ['assessment'] },
+    investigation: { label: 'Recording the investigation', permission: 'complaint.assess', states: ['investigation'] },
+    links: { label: 'Linking a record', permission: 'complaint.assess', states: ['investigation'] },
+    response: {
+      label: 'Writing the answer',
+      permission: 'complaint.respond',
+      states: ['response'],
+      condition: { holds: (row) => row.responseSentAt === null, refusal: 'The answer has already been sent; it stays on record as it went out.' },
+    },
+    report: {
+      label: 'Recording the report',
+      permission: 'complaint.respond',
+      states: ['investigation', 'response', 'closed'],
+      condition: { holds: (row) => row.reportable === true, refusal: 'This complaint was assessed as not reportable.' },
+    },
+    evidence: {
+      label: 'Adding evidence',
+      permission: 'attachment.add',
+      states: openStates,
+      stateRefusal: 'This complaint is closed; evidence can no longer be added. Reopen it if new evidence arrives.',
+      ownScope: { of: (row) => [row.createdBy, row.ownerId], refusal: 'Only the person who took this complaint down and QA can add evidence to it.' },
+    },
+    comments: { label: 'Commenting', permission: 'complaint.read', states: 'any', bumpsVersion: false },
+  },
+  signedContent: {
+    reportability_decided: (row) => ({ intake: signedParts.intake(row), assessment: signedParts.assessment(row) }),
+    investigation_complete: (row, facts) => ({
+      intake: signedParts.intake(row),
+      assessment: signedParts.assessment(row),
+      investigation: signedParts.investigation(row, facts),
+      evidence: facts.evidence,
+    }),
+    approved: (row, facts) => ({
+      intake: signedParts.intake(row),
+      assessment: signedParts.assessment(row),
+      investigation: signedParts.investigation(row, facts),
+      response: signedParts.response(row),
+      evidence: facts.evidence,
+    }),
+  },
+  signedPartLabels: {
+    intake: 'the complaint as received',
+    assessment: 'the assessment',
+    investigation: 'the investigation',
+    response: 'the answer as sent',
+    evidence: 'the evidence files',
+  },
   auditFields: complaintAuditFields,
   toDto: toComplaintDto,
   effects: {
     notifyQaOfNewComplaint: {
       async inTransaction(tx, { actor, after }) {
-        await mailStaffAboutComplaint(tx, await activeUsersWith(tx, { role: 'qa_investigator' }), actor, after, {
+        await complaintNotice(tx, after, await activeUsersWithRole(tx, ['qa_investigator']), actor, {
           key: 'complaint-received',
           template: 'complaint_received',
           subject: `New complaint ${after.number}`,
@@ -299,7 +371,7 @@ export const complaintKind = defineRecordKind({
     },
     notifyOwnerReopened: {
       async inTransaction(tx, { actor, after }) {
-        await mailStaffAboutComplaint(tx, await activeUsersWith(tx, { ids: [after.ownerId] }), actor, after, {
+        await complaintNotice(tx, after, await activeUsers(tx, [after.ownerId]), actor, {
           key: 'complaint-reopened',
           template: 'complaint_reopened',
           subject: `Complaint ${after.number} reopened`,

@@ -2,10 +2,11 @@ import 'server-only';
 import { and, desc, eq, gte, inArray, lt, notExists, sql } from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../../db/client';
 import { batches, deviationBatches, deviations, fillingRings, machines, products, weightChecks } from '../../db/schema';
-import { diffFields, type FieldChange, writeAudit } from '../audit';
-import { assertCan, can } from '../auth/permissions';
-import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
-import { type RecordActor, ownerScope } from '../records/kind';
+import { diffFields } from '../audit';
+import { assertCan } from '../auth/permissions';
+import { ConflictError, ValidationError } from '../errors';
+import type { RecordActor } from '../records/kind';
+import { editRecord, getVisibleRow } from '../records/write-path';
 import { parseInput } from '../validation/parse';
 import {
   defaultAql,
@@ -31,79 +32,8 @@ import { type ExtendHoldsInput, type RecordDispositionInput, extendHoldsSchema, 
 
 export type DispositionMode = 'recommend' | 'decide';
 
-/**
- * What this person may do to the dispositions now, or why not. The checks follow the order a person
- * wants to hear them: the stage, their role, their relation to this deviation.
- */
-function dispositionAccess(actor: RecordActor, row: DeviationRow): { mode: DispositionMode } | { refusal: Error } {
-  const scope = ownerScope(deviationKind, row);
-  switch (row.status) {
-    case 'investigation':
-      if (!can(actor, 'deviation.investigate', scope)) {
-        return { refusal: new ForbiddenError('Only the assigned QA investigator recommends dispositions during the investigation.') };
-      }
-      if (actor.id !== row.investigatorId) {
-        return { refusal: new ForbiddenError('Only the investigator assigned to this deviation recommends the dispositions of its batches.') };
-      }
-      return { mode: 'recommend' };
-    case 'approval':
-    case 'triage': {
-      if (row.status === 'triage' && row.classification !== 'minor') {
-        return {
-          refusal: new InvalidTransitionError(
-            'At triage only a deviation classified minor (to be closed there) takes dispositions; the others get them through the investigation.',
-          ),
-        };
-      }
-      if (!can(actor, 'deviation.approve', scope)) {
-        return { refusal: new ForbiddenError('Only a QA approver decides the final disposition of a held batch.') };
-      }
-      // Segregation of duties (21 CFR 211.22(a); common practice): whoever raised or investigated it does not decide.
-      if (actor.id === row.raisedBy || actor.id === row.investigatorId) {
-        return { refusal: new ForbiddenError('The final disposition is decided by a QA approver who neither raised nor investigated this deviation.') };
-      }
-      return { mode: 'decide' };
-    }
-    default:
-      return {
-        refusal: new InvalidTransitionError(
-          `Dispositions are recorded during the investigation and at approval; this deviation is ${row.status} now.`,
-        ),
-      };
-  }
-}
-
-/** For the page: whether to show this person the disposition forms, and as what. */
-export function dispositionModeFor(actor: RecordActor, deviation: Pick<DeviationRow, 'status' | 'classification' | 'raisedBy' | 'investigatorId'>): DispositionMode | null {
-  const access = dispositionAccess(actor, deviation as DeviationRow);
-  return 'mode' in access ? access.mode : null;
-}
-
-/** Locks the deviation; missing or invisible is reported as missing, a stale version as a conflict. */
-async function lockDeviation(tx: Tx, actor: RecordActor, id: number, version: number): Promise<DeviationRow> {
-  const [row] = await tx.select().from(deviations).where(eq(deviations.id, id)).for('update');
-  if (!row || !can(actor, 'deviation.read', ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
-  // Someone else's draft is their notebook, not a record yet (as lib/deviations/detail.ts).
-  if (row.status === 'draft' && row.raisedBy !== actor.id) throw new NotFoundError('This deviation');
-  return row;
-}
-
-/** Bumps the version the caller read (optimistic locking) and audits the changes on the deviation. */
-async function bumpAndAudit(tx: Tx, actor: RecordActor, row: DeviationRow, action: string, changes: FieldChange[]): Promise<number> {
-  const [result] = await tx
-    .update(deviations)
-    .set({ version: sql`${deviations.version} + 1` })
-    .where(and(eq(deviations.id, row.id), eq(deviations.version, row.version)));
-  if (result.affectedRows !== 1) throw new ConflictError();
-  await writeAudit(tx, {
-    actor: { id: actor.id, name: actor.name },
-    recordType: 'deviation',
-    recordId: row.id,
-    action,
-    changes,
-  });
-  return row.version + 1;
-}
+/** Which of the kind's sections a disposition is recorded in, by the deviation's state. */
+const dispositionSection = (status: DeviationRow['status']) => (status === 'investigation' ? 'recommendation' : 'disposition');
 
 const dispositionFields = ['recommendedDisposition', 'disposition', 'dispositionNote', 'samplingPlan'] as const;
 
@@ -121,69 +51,70 @@ export interface DispositionOutcome {
  */
 export async function recordDisposition(actor: RecordActor, raw: RecordDispositionInput): Promise<DispositionOutcome> {
   const input = parseInput(recordDispositionSchema, raw);
-  return db.transaction(async (tx) => {
-    const row = await lockDeviation(tx, actor, input.id, input.version);
-    const access = dispositionAccess(actor, row);
-    if ('refusal' in access) throw access.refusal;
-    if (row.version !== input.version) throw new ConflictError();
+  const seen = await getVisibleRow(db, deviationKind, input.id, actor);
+  const outcome = await editRecord(deviationKind, {
+    id: input.id,
+    section: dispositionSection(seen.status),
+    actor,
+    expectedVersion: input.version,
+    action: 'record_disposition',
+    async apply(row, { tx }) {
+      // The section was chosen from a read before the lock; the state it was chosen for still holds.
+      if (dispositionSection(row.status) !== dispositionSection(seen.status)) throw new ConflictError();
+      const mode: DispositionMode = row.status === 'investigation' ? 'recommend' : 'decide';
+      const [held] = await tx
+        .select({ batch: deviationBatches, lot: batches.lotNumber, lotSize: batches.sizeCapsules, batchStatus: batches.status })
+        .from(deviationBatches)
+        .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
+        .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId), eq(deviationBatches.onHold, true)));
+      if (!held) {
+        const message = 'This batch is not held by this deviation.';
+        throw new ValidationError(message, { batchId: [message] });
+      }
 
-    const [held] = await tx
-      .select({ batch: deviationBatches, lot: batches.lotNumber, lotSize: batches.sizeCapsules, batchStatus: batches.status })
-      .from(deviationBatches)
-      .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
-      .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId), eq(deviationBatches.onHold, true)));
-    if (!held) {
-      const message = 'This batch is not held by this deviation.';
-      throw new ValidationError(message, { batchId: [message] });
-    }
+      const needNote = noteRequirement(
+        input.disposition,
+        mode === 'decide' && row.status === 'approval' ? { recommended: held.batch.recommendedDisposition } : null,
+      );
+      if (needNote && !input.note) throw new ValidationError(needNote, { note: [needNote] });
 
-    const needNote = noteRequirement(
-      input.disposition,
-      access.mode === 'decide' && row.status === 'approval' ? { recommended: held.batch.recommendedDisposition } : null,
-    );
-    if (needNote && !input.note) throw new ValidationError(needNote, { note: [needNote] });
+      let samplingPlan: string | null = null;
+      if (input.disposition === 're_inspect') {
+        const plan = reInspectionPlan({
+          lotSize: held.lotSize,
+          level: input.inspectionLevel ?? defaultInspectionLevel,
+          aql: input.aql ?? defaultAql,
+          severity: input.inspectionSeverity ?? defaultSeverity,
+        });
+        if (!plan.ok) throw new ValidationError(plan.message, { aql: [plan.message] });
+        samplingPlan = plan.summary;
+      }
 
-    let samplingPlan: string | null = null;
-    if (input.disposition === 're_inspect') {
-      const plan = reInspectionPlan({
-        lotSize: held.lotSize,
-        level: input.inspectionLevel ?? defaultInspectionLevel,
-        aql: input.aql ?? defaultAql,
-        severity: input.inspectionSeverity ?? defaultSeverity,
-      });
-      if (!plan.ok) throw new ValidationError(plan.message, { aql: [plan.message] });
-      samplingPlan = plan.summary;
-    }
-
-    const before = held.batch;
-    const after = {
-      ...before,
-      // At triage (minor, no investigation) and during the investigation the decision is also the recommendation.
-      recommendedDisposition: row.status === 'approval' ? before.recommendedDisposition : input.disposition,
-      disposition: input.disposition as Disposition,
-      // An approver who confirms the recommendation without a word keeps the investigator's note.
-      dispositionNote:
-        input.note ?? (row.status === 'approval' && input.disposition === before.disposition ? before.dispositionNote : null),
-      samplingPlan,
-    };
-    const changes = diffFields(before, after, dispositionFields).map((c) => ({ ...c, field: `${c.field} (${held.lot})` }));
-    if (changes.length === 0) {
-      throw new ValidationError(`${held.lot} already has this disposition; nothing to save.`, { disposition: ['Nothing changed.'] });
-    }
-    await tx
-      .update(deviationBatches)
-      .set({
-        recommendedDisposition: after.recommendedDisposition,
-        disposition: after.disposition,
-        dispositionNote: after.dispositionNote,
-        samplingPlan: after.samplingPlan,
-      })
-      .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId)));
-    const version = await bumpAndAudit(tx, actor, row, 'record_disposition', changes);
-    return {
-      deviationId: row.id,
-      version,
-      batch: {
+      const before = held.batch;
+      const after = {
+        ...before,
+        // At triage (minor, no investigation) and during the investigation the decision is also the recommendation.
+        recommendedDisposition: row.status === 'approval' ? before.recommendedDisposition : input.disposition,
+        disposition: input.disposition as Disposition,
+        // An approver who confirms the recommendation without a word keeps the investigator's note.
+        dispositionNote:
+          input.note ?? (row.status === 'approval' && input.disposition === before.disposition ? before.dispositionNote : null),
+        samplingPlan,
+      };
+      const changes = diffFields(before, after, dispositionFields).map((c) => ({ ...c, field: `${c.field} (${held.lot})` }));
+      if (changes.length === 0) {
+        throw new ValidationError(`${held.lot} already has this disposition; nothing to save.`, { disposition: ['Nothing changed.'] });
+      }
+      await tx
+        .update(deviationBatches)
+        .set({
+          recommendedDisposition: after.recommendedDisposition,
+          disposition: after.disposition,
+          dispositionNote: after.dispositionNote,
+          samplingPlan: after.samplingPlan,
+        })
+        .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId)));
+      const batch: HeldBatchDto = {
         batchId: input.batchId,
         lotNumber: held.lot,
         batchStatus: held.batchStatus,
@@ -192,9 +123,11 @@ export async function recordDisposition(actor: RecordActor, raw: RecordDispositi
         disposition: after.disposition,
         dispositionNote: after.dispositionNote,
         samplingPlan: after.samplingPlan,
-      },
-    };
+      };
+      return { audit: changes, result: batch };
+    },
   });
+  return { deviationId: outcome.record.id, version: outcome.record.version, batch: outcome.result! };
 }
 
 export interface HoldSuggestionDto {
@@ -232,9 +165,7 @@ const suggestionLimit = 20;
  * Each side is read from its own index (batches by machine or by ring, then manufacture date).
  */
 export async function listHoldSuggestions(deviationId: number, viewer: RecordActor, dbOrTx: DbOrTx = db): Promise<HoldSuggestionsDto> {
-  const [row] = await dbOrTx.select().from(deviations).where(eq(deviations.id, deviationId));
-  if (!row || !can(viewer, 'deviation.read', ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
-  if (row.status === 'draft' && row.raisedBy !== viewer.id) throw new NotFoundError('This deviation');
+  const row = await getVisibleRow(dbOrTx, deviationKind, deviationId, viewer);
   assertCan(viewer, 'deviation.triage');
 
   const onEquipment = row.machineId !== null ? eq(weightChecks.machineId, row.machineId) : row.ringId !== null ? eq(weightChecks.ringId, row.ringId) : null;
@@ -328,61 +259,55 @@ export interface ExtendHoldsOutcome {
  */
 export async function extendHolds(actor: RecordActor, raw: ExtendHoldsInput): Promise<ExtendHoldsOutcome> {
   const input = parseInput(extendHoldsSchema, raw);
-  return db.transaction(async (tx) => {
-    const row = await lockDeviation(tx, actor, input.id, input.version);
-    assertCan(actor, 'deviation.triage', ownerScope(deviationKind, row));
-    if (row.status !== 'reported' && row.status !== 'triage') {
-      throw new InvalidTransitionError(`Holds are extended while the deviation is reported or in triage; it is ${row.status} now.`);
-    }
-    if (row.version !== input.version) throw new ConflictError();
-
-    const found = await tx
-      .select({ id: batches.id, lot: batches.lotNumber, status: batches.status })
-      .from(batches)
-      .where(inArray(batches.id, input.batchIds));
-    const missing = input.batchIds.filter((b) => !found.some((f) => f.id === b));
-    if (missing.length > 0) {
-      throw new ValidationError('Pick the batches to hold from the list.', { batchIds: [`No batch has the id ${missing.join(', ')}.`] });
-    }
-    const rejected = found.filter((b) => b.status === 'rejected');
-    if (rejected.length > 0) {
-      const message = `${rejected.map((b) => b.lot).join(', ')} ${rejected.length === 1 ? 'is' : 'are'} rejected already; there is nothing to hold.`;
-      throw new ValidationError(message, { batchIds: [message] });
-    }
-    const existing = await tx
-      .select({ batchId: deviationBatches.batchId, onHold: deviationBatches.onHold })
-      .from(deviationBatches)
-      .where(eq(deviationBatches.deviationId, row.id));
-    const heldBefore = existing.filter((e) => e.onHold).map((e) => e.batchId);
-    const already = found.filter((b) => heldBefore.includes(b.id));
-    if (already.length > 0) {
-      const message = `This deviation holds ${already.map((b) => b.lot).join(', ')} already.`;
-      throw new ValidationError(message, { batchIds: [message] });
-    }
-
-    const label = row.number ?? `draft #${row.id}`;
-    const sorted = [...found].sort((a, b) => a.lot.localeCompare(b.lot));
-    for (const b of sorted) {
-      if (existing.some((e) => e.batchId === b.id)) {
-        await tx
-          .update(deviationBatches)
-          .set({ onHold: true })
-          .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, b.id)));
-      } else {
-        await tx.insert(deviationBatches).values({ deviationId: row.id, batchId: b.id, onHold: true });
+  const outcome = await editRecord(deviationKind, {
+    id: input.id,
+    section: 'holds',
+    actor,
+    expectedVersion: input.version,
+    action: 'extend_holds',
+    async apply(row, { tx, related }) {
+      const found = await tx
+        .select({ id: batches.id, lot: batches.lotNumber, status: batches.status })
+        .from(batches)
+        .where(inArray(batches.id, input.batchIds));
+      const missing = input.batchIds.filter((b) => !found.some((f) => f.id === b));
+      if (missing.length > 0) {
+        throw new ValidationError('Pick the batches to hold from the list.', { batchIds: [`No batch has the id ${missing.join(', ')}.`] });
       }
-      await setBatchStatus(tx, actor, b.id, 'on_hold', 'hold', `Put on hold by deviation ${label}`);
-    }
-    const heldAfter = [...heldBefore, ...sorted.map((b) => b.id)].sort((a, b) => a - b);
-    const version = await bumpAndAudit(
-      tx,
-      actor,
-      row,
-      'extend_holds',
-      diffFields({ heldBatchIds: [...heldBefore].sort((a, b) => a - b) }, { heldBatchIds: heldAfter }, ['heldBatchIds']),
-    );
-    return { deviationId: row.id, version, held: sorted.map((b) => b.lot) };
+      const rejected = found.filter((b) => b.status === 'rejected');
+      if (rejected.length > 0) {
+        const message = `${rejected.map((b) => b.lot).join(', ')} ${rejected.length === 1 ? 'is' : 'are'} rejected already; there is nothing to hold.`;
+        throw new ValidationError(message, { batchIds: [message] });
+      }
+      const heldBefore = related.held.filter((h) => h.onHold).map((h) => h.batchId);
+      const already = found.filter((b) => heldBefore.includes(b.id));
+      if (already.length > 0) {
+        const message = `This deviation holds ${already.map((b) => b.lot).join(', ')} already.`;
+        throw new ValidationError(message, { batchIds: [message] });
+      }
+
+      const label = row.number ?? `draft #${row.id}`;
+      // In id order, so two writers holding the same batches queue instead of deadlocking.
+      const sorted = [...found].sort((a, b) => a.id - b.id);
+      for (const b of sorted) {
+        if (related.held.some((e) => e.batchId === b.id)) {
+          await tx
+            .update(deviationBatches)
+            .set({ onHold: true })
+            .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, b.id)));
+        } else {
+          await tx.insert(deviationBatches).values({ deviationId: row.id, batchId: b.id, onHold: true });
+        }
+        await setBatchStatus(tx, actor, b.id, 'on_hold', 'hold', `Put on hold by deviation ${label}`);
+      }
+      const heldAfter = [...heldBefore, ...sorted.map((b) => b.id)].sort((a, b) => a - b);
+      return {
+        audit: diffFields({ heldBatchIds: [...heldBefore].sort((a, b) => a - b) }, { heldBatchIds: heldAfter }, ['heldBatchIds']),
+        result: [...sorted].sort((a, b) => a.lot.localeCompare(b.lot)).map((b) => b.lot),
+      };
+    },
   });
+  return { deviationId: outcome.record.id, version: outcome.record.version, held: outcome.result! };
 }
 
 /** Lot size (capsules) of each batch the deviation holds, for the re-inspection plan on the page. */

@@ -4,9 +4,9 @@ import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, deviationBatches, deviations, fillingRings, machines, products, users } from '../../db/schema';
 import { can } from '../auth/permissions';
-import { NotFoundError } from '../errors';
 import type { AllowedEvent } from '../records/workflow';
-import { type RecordActor, allowedEventsFor, ownerScope } from '../records/kind';
+import { type BlockedEvent, type RecordAbilities, type RecordActor, type SectionOf, abilitiesOf } from '../records/kind';
+import { getVisibleRow, loadRelated, signedContentOf } from '../records/write-path';
 import { userIdsInChanges } from '../records/timeline';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';
 import { type SignatureDto, listSignatures } from '../signatures';
@@ -18,12 +18,13 @@ import {
   assignInvestigation,
   cancelDeviation,
   closeMinor,
+  discardDraft,
   returnForRework,
   startTriage,
   submitDeviation,
   submitForApproval,
 } from './commands';
-import { type DeviationDto, deviationKind, deviationSignedContent } from './kind';
+import { type DeviationDto, deviationKind } from './kind';
 import type { Classification, Disposition } from './labels';
 
 /*
@@ -64,6 +65,10 @@ export interface DeviationDetailDto {
   investigatorName: string | null;
   heldBatches: HeldBatchDto[];
   allowedEvents: AllowedEvent<DeviationEventType>[];
+  /** Events this person's role sends now but this deviation refuses them, with the reason (segregation of duties, a guard). */
+  blockedEvents: BlockedEvent<DeviationEventType>[];
+  /** Which sections this person may edit now, and why not. */
+  sections: RecordAbilities<DeviationEventType, SectionOf<typeof deviationKind>>['sections'];
   history: HistoryEntryDto[];
   signatures: SignatureDto[];
   /** Null for roles without audit.read. */
@@ -87,10 +92,8 @@ async function userName(dbOrTx: DbOrTx, id: number | null): Promise<string | nul
 
 /** Someone else's draft is reported as missing, exactly like a record that does not exist. */
 export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx: DbOrTx = db): Promise<DeviationDetailDto> {
-  const [row] = await dbOrTx.select().from(deviations).where(eq(deviations.id, id));
-  if (!row || !can(viewer, deviationKind.readPermission, ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
-  // A draft is its author's notebook until submitted (lib/deviations/queries.ts hides it from lists too).
-  if (row.status === 'draft' && row.raisedBy !== viewer.id) throw new NotFoundError('This deviation');
+  const row = await getVisibleRow(dbOrTx, deviationKind, id, viewer);
+  const facts = await loadRelated(deviationKind, dbOrTx, row);
 
   const [defect, product, batch, machine, ring, held, raisedByName, ownerName, investigatorName, history, signatures, audit] =
     await Promise.all([
@@ -155,7 +158,7 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
       userName(dbOrTx, row.ownerId),
       userName(dbOrTx, row.investigatorId),
       listStateHistory(dbOrTx, deviationKind, row.id),
-      listSignatures(dbOrTx, 'deviation', row.id, deviationSignedContent(row)),
+      listSignatures(dbOrTx, 'deviation', row.id, (meaning) => signedContentOf(deviationKind, meaning, row, facts), deviationKind.signedPartLabels),
       can(viewer, 'audit.read') ? listAuditTrail(dbOrTx, 'deviation', row.id) : Promise.resolve(null),
     ]);
 
@@ -170,7 +173,7 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
     ownerName,
     investigatorName,
     heldBatches: held,
-    allowedEvents: allowedEventsFor(deviationKind, viewer, row),
+    ...abilitiesOf(deviationKind, viewer, row, facts),
     history,
     signatures,
     audit,
@@ -210,6 +213,8 @@ export async function sendDeviationEvent(actor: RecordActor, id: number, raw: un
   switch (event) {
     case 'submit':
       return submitDeviation(actor, { id, version });
+    case 'discard':
+      return discardDraft(actor, { id, version, reason: reason ?? null });
     case 'start_triage':
       return startTriage(actor, { id, version });
     case 'assign_investigation':

@@ -1,13 +1,12 @@
 import 'server-only';
-import { and, eq, sql } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { capsuleDefects, deviations, users } from '../../db/schema';
-import { diffFields, writeAudit } from '../audit';
-import { assertCan, can } from '../auth/permissions';
+import { capsuleDefects, users } from '../../db/schema';
 import { type CauseBranch, type Fishbone, fishboneFor } from '../causes';
 import { type LinkedCapa, ensureCapaForDeviation, listCapasRaisedBy } from '../capa/create-from-deviation';
-import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
-import { type RecordActor, ownerScope } from '../records/kind';
+import { ValidationError } from '../errors';
+import type { RecordActor } from '../records/kind';
+import { abilitiesFor, editRecord, getVisibleRow } from '../records/write-path';
 import { cleanRichTextForSaving } from '../rich-text/sanitize';
 import { parseInput } from '../validation/parse';
 import {
@@ -21,7 +20,7 @@ import {
   rootCauseCategories,
   saveInvestigationSchema,
 } from './investigation-schema';
-import { type DeviationDto, type DeviationRow, deviationAuditFields, deviationKind } from './kind';
+import { type DeviationDto, deviationKind } from './kind';
 
 /*
  * The investigation section of a deviation: the report, five whys, the cause-and-effect marks,
@@ -96,20 +95,11 @@ function mergeBranches(fishbone: Fishbone, analysis: CauseAnalysis): Investigati
   }));
 }
 
-function refusalFor(viewer: RecordActor, row: DeviationRow): string | null {
-  if (!can(viewer, 'deviation.investigate', ownerScope(deviationKind, row))) return null;
-  if (row.investigatorId !== viewer.id) return 'Only the assigned investigator edits the investigation.';
-  if (row.status !== 'investigation') return `The investigation is edited while the deviation is under investigation; it is ${row.status} now.`;
-  return null;
-}
-
 const isRootCauseCategory = (v: string | null): v is RootCauseCategory => v !== null && (rootCauseCategories as readonly string[]).includes(v);
 
 /** The section as the page and GET /api/deviations/[id]/investigation show it. Drafts stay their author's. */
 export async function getInvestigationView(deviationId: number, viewer: RecordActor, dbOrTx: DbOrTx = db): Promise<InvestigationViewDto> {
-  const [row] = await dbOrTx.select().from(deviations).where(eq(deviations.id, deviationId));
-  if (!row || !can(viewer, deviationKind.readPermission, ownerScope(deviationKind, row))) throw new NotFoundError('This deviation');
-  if (row.status === 'draft' && row.raisedBy !== viewer.id) throw new NotFoundError('This deviation');
+  const row = await getVisibleRow(dbOrTx, deviationKind, deviationId, viewer);
 
   const [defect, investigator, linked] = await Promise.all([
     row.defectId === null
@@ -131,8 +121,7 @@ export async function getInvestigationView(deviationId: number, viewer: RecordAc
   const critical = row.classification === 'critical' || (row.classification === null && defect?.defaultClassification === 'critical');
   const fishbone = fishboneFor(defect?.code ?? '', { critical });
   const analysis = parseStoredCauseAnalysis(row.causeAnalysis);
-  const refusal = refusalFor(viewer, row);
-  const canEdit = refusal === null && can(viewer, 'deviation.investigate', ownerScope(deviationKind, row));
+  const { sections } = await abilitiesFor(deviationKind, viewer, row, dbOrTx);
   return {
     deviationId: row.id,
     version: row.version,
@@ -141,8 +130,8 @@ export async function getInvestigationView(deviationId: number, viewer: RecordAc
     defectName: defect?.name ?? null,
     investigatorId: row.investigatorId,
     investigatorName: investigator,
-    canEdit,
-    editRefusal: refusal,
+    canEdit: sections.investigation.editable,
+    editRefusal: sections.investigation.reason,
     report: row.investigationReport,
     fiveWhys: parseStoredFiveWhys(row.fiveWhys),
     causeAnalysis: analysis,
@@ -168,71 +157,50 @@ export interface SaveInvestigationOutcome {
  * under investigation; nobody saved since they opened it. Then cleans the report, writes the row
  * and its audit entry and, the first time a CAPA is said to be needed, opens it — one transaction.
  */
-export async function saveInvestigation(actor: RecordActor, raw: SaveInvestigationInput, dbOrTx: typeof db = db): Promise<SaveInvestigationOutcome> {
+export async function saveInvestigation(actor: RecordActor, raw: SaveInvestigationInput): Promise<SaveInvestigationOutcome> {
   const input = parseInput(saveInvestigationSchema, raw);
   const report = input.investigationReport === undefined ? null : cleanRichTextForSaving(input.investigationReport);
   if (report && !report.ok) throw new ValidationError(report.message, { investigationReport: [report.message] });
 
-  const { outcome, afterCommit } = await dbOrTx.transaction(async (tx) => {
-    const [before] = await tx.select().from(deviations).where(eq(deviations.id, input.id)).for('update');
-    const scope = before ? ownerScope(deviationKind, before) : null;
-    if (!before || !scope || !can(actor, 'deviation.read', scope) || (before.status === 'draft' && before.raisedBy !== actor.id)) {
-      throw new NotFoundError('This deviation');
-    }
-    assertCan(actor, 'deviation.investigate', scope);
-    // The investigation is the assigned investigator's, not any QA investigator's (common practice:
-    // one named author answers for the report they sign).
-    if (before.investigatorId !== actor.id) {
-      throw new ForbiddenError('Only the assigned investigator edits this investigation.');
-    }
-    if (before.status !== 'investigation') {
-      throw new InvalidTransitionError(`The investigation is edited while the deviation is under investigation; it is ${before.status} now.`);
-    }
-    if (before.version !== input.version) throw new ConflictError(investigationConflictMessage);
-
-    const [defect] =
-      before.defectId === null
-        ? []
-        : await tx.select({ code: capsuleDefects.code }).from(capsuleDefects).where(eq(capsuleDefects.id, before.defectId));
-    const known = new Set(fishboneFor(defect?.code ?? '').branches.flatMap((b) => b.causes.map((c) => c.id)));
-    const unknown = input.causeAnalysis.catalogue.filter((m) => !known.has(m.causeId));
-    if (unknown.length > 0) {
-      const message = 'Some marked causes are not probable causes of this defect; reload the page.';
-      throw new ValidationError(message, { causeAnalysis: [message] });
-    }
-
-    const reportHtml = report && !report.empty ? report.html : null;
-    const changes = {
-      investigationReport: reportHtml,
-      fiveWhys: input.fiveWhys.length > 0 ? JSON.stringify(input.fiveWhys) : null,
-      causeAnalysis:
-        input.causeAnalysis.catalogue.length + input.causeAnalysis.own.length > 0 ? JSON.stringify(input.causeAnalysis) : null,
-      rootCauseCategory: input.rootCauseCategory ?? null,
-      rootCause: input.rootCause ?? null,
-      productImpact: input.productImpact ?? null,
-      capaRequired: input.capaRequired,
-    };
-    const [result] = await tx
-      .update(deviations)
-      .set({ ...changes, version: sql`${deviations.version} + 1` })
-      .where(and(eq(deviations.id, before.id), eq(deviations.version, before.version), eq(deviations.status, 'investigation')));
-    if (result.affectedRows !== 1) throw new ConflictError(investigationConflictMessage);
-    const [after] = await tx.select().from(deviations).where(eq(deviations.id, before.id));
-
-    const capa = after!.capaRequired ? await ensureCapaForDeviation(tx, actor, after!) : null;
-    const capaCreated = capa?.created ? capa.capa : null;
-    await writeAudit(tx, {
-      actor: { id: actor.id, name: actor.name },
-      recordType: 'deviation',
-      recordId: before.id,
-      action: 'save_investigation',
-      changes: [
-        ...diffFields(before, after!, deviationAuditFields),
-        ...(capaCreated ? [{ field: 'raisedCapa', from: null, to: capaCreated.number }] : []),
-      ],
-    });
-    return { outcome: { record: deviationKind.toDto(after!), capaCreated }, afterCommit: capa?.afterCommit };
+  const outcome = await editRecord(deviationKind, {
+    id: input.id,
+    section: 'investigation',
+    actor,
+    expectedVersion: input.version,
+    action: 'save_investigation',
+    conflictMessage: investigationConflictMessage,
+    async apply(before, { tx }) {
+      const [defect] =
+        before.defectId === null
+          ? []
+          : await tx.select({ code: capsuleDefects.code }).from(capsuleDefects).where(eq(capsuleDefects.id, before.defectId));
+      const known = new Set(fishboneFor(defect?.code ?? '').branches.flatMap((b) => b.causes.map((c) => c.id)));
+      const unknown = input.causeAnalysis.catalogue.filter((m) => !known.has(m.causeId));
+      if (unknown.length > 0) {
+        const message = 'Some marked causes are not probable causes of this defect; reload the page.';
+        throw new ValidationError(message, { causeAnalysis: [message] });
+      }
+      const changes = {
+        investigationReport: report && !report.empty ? report.html : null,
+        fiveWhys: input.fiveWhys.length > 0 ? JSON.stringify(input.fiveWhys) : null,
+        causeAnalysis:
+          input.causeAnalysis.catalogue.length + input.causeAnalysis.own.length > 0 ? JSON.stringify(input.causeAnalysis) : null,
+        rootCauseCategory: input.rootCauseCategory ?? null,
+        rootCause: input.rootCause ?? null,
+        productImpact: input.productImpact ?? null,
+        capaRequired: input.capaRequired,
+      };
+      // The first "CAPA needed" opens one through the CAPA's own insert path, in this transaction
+      // (ICH Q10 3.2.2), from the deviation as it is being saved.
+      const capa = changes.capaRequired ? await ensureCapaForDeviation(tx, actor, { ...before, ...changes }) : null;
+      const capaCreated = capa?.created ? capa.capa : null;
+      return {
+        changes,
+        audit: capaCreated ? [{ field: 'raisedCapa', from: null, to: capaCreated.number }] : [],
+        result: capaCreated,
+        afterCommit: capa?.afterCommit,
+      };
+    },
   });
-  await afterCommit?.();
-  return outcome;
+  return { record: outcome.record, capaCreated: outcome.result ?? null };
 }

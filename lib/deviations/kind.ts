@@ -1,22 +1,30 @@
 import 'server-only';
-import { and, eq, inArray, ne } from 'drizzle-orm';
+import { and, asc, eq, inArray, ne, notInArray, or } from 'drizzle-orm';
 import type { Tx } from '../../db/client';
-import { batches, deviationBatches, deviations, users } from '../../db/schema';
+import { batches, deviationBatches, deviations } from '../../db/schema';
 import { deviationGuardRefusals, deviationMachine } from '../../workflows/deviation';
 import type { DeviationState } from '../../workflows/states';
-import { diffFields, writeAudit } from '../audit';
-import { getEnv } from '../env';
-import { enqueueMail } from '../mail/outbox';
-import { renderMailLayout } from '../mail/templates/layout';
-import { type RecordActor, defineRecordKind } from '../records/kind';
+import { type Notice, type Recipient, activeUsers, activeUsersWithRole, sendNotice } from '../mail/record-notice';
+import { batchKind } from '../master-data/batch-kind';
+import { type EvidenceDigest, listEvidenceDigests } from '../records/facts';
+import { type RecordActor, defineRecordKind, independentPeople } from '../records/kind';
+import { writeConsequence } from '../records/write-path';
 import { type Classification, classificationLabels, deviationEventLabels, deviationStateLabels } from './labels';
 
-/* Deviations on the write path: their table, machine, permissions, signed content and effects. */
+/*
+ * Deviations on the write path: who sees one (a draft, and a discarded draft, are their author's
+ * alone), who edits which section in which state, who may not approve, close, return or cancel it
+ * (whoever raised or investigated it), what each signature covers, and the effects of its events.
+ * Nothing else in the product restates these rules.
+ */
 
 export type DeviationRow = typeof deviations.$inferSelect;
 
 /** States in which a deviation still holds its batches. */
 export const openDeviationStates = ['reported', 'triage', 'investigation', 'approval'] as const satisfies readonly DeviationState[];
+
+/** States that are the author's alone: nobody else is told such a record exists. */
+const privateStates = ['draft', 'discarded'] as const satisfies readonly DeviationState[];
 
 export interface DeviationDto {
   id: number;
@@ -148,30 +156,90 @@ export const deviationAuditFields = [
   'closedAt',
 ] as const satisfies readonly (keyof DeviationRow)[];
 
-/** What a signature on a deviation vouches for: the GMP content, never volatile columns. */
+export interface HeldBatchFact {
+  batchId: number;
+  lotNumber: string;
+  onHold: boolean;
+  recommendedDisposition: string | null;
+  disposition: string | null;
+  dispositionNote: string | null;
+  samplingPlan: string | null;
+}
+
+/** What the deviation's rules read beyond its row: the batches it holds and the files on it. */
+export interface DeviationFacts {
+  held: HeldBatchFact[];
+  evidence: EvidenceDigest[];
+}
+
+async function deviationFacts(dbOrTx: Parameters<typeof listEvidenceDigests>[0], row: DeviationRow): Promise<DeviationFacts> {
+  const [held, evidence] = await Promise.all([
+    dbOrTx
+      .select({
+        batchId: deviationBatches.batchId,
+        lotNumber: batches.lotNumber,
+        onHold: deviationBatches.onHold,
+        recommendedDisposition: deviationBatches.recommendedDisposition,
+        disposition: deviationBatches.disposition,
+        dispositionNote: deviationBatches.dispositionNote,
+        samplingPlan: deviationBatches.samplingPlan,
+      })
+      .from(deviationBatches)
+      .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
+      .where(eq(deviationBatches.deviationId, row.id))
+      .orderBy(asc(deviationBatches.batchId)),
+    listEvidenceDigests(dbOrTx, 'deviation', row.id),
+  ]);
+  return { held, evidence };
+}
+
+const heldNow = (facts: DeviationFacts) => facts.held.filter((h) => h.onHold);
+
+/** "Every held batch needs a disposition …; BW-2611-03 has none …", or null when none is missing. */
+function undisposedRefusal(facts: DeviationFacts): string | null {
+  const open = heldNow(facts).filter((h) => h.disposition === null);
+  if (open.length === 0) return null;
+  const lots = open.map((h) => h.lotNumber).join(', ');
+  return `Every held batch needs a disposition before the deviation closes; ${lots} ${open.length === 1 ? 'has' : 'have'} none. Record it under "Held batches".`;
+}
+
 /*
- * What a deviation signature vouches for: the facts, the assessment and the investigation. The
- * lifecycle state is left out on purpose: a later step (approval after "investigation complete")
- * moves the state without changing what was signed, and must not make the earlier signature read
- * as "record changed after signing" (21 CFR 11.70 links a signature to the content it signed).
+ * What each signature vouches for (21 CFR 11.70: a signature is linked to the record it signs). The
+ * investigator's "investigation complete" covers the report as raised, the triage, the
+ * investigation, the dispositions they recommend and every file's SHA-256; the approver's
+ * "approved" (approval, closing as minor, cancelling) covers all of that plus the final
+ * dispositions and the closing words. The lifecycle state and times are left out: a later step
+ * moves them without changing what was signed.
  */
-export function deviationSignedContent(row: DeviationRow): Record<string, unknown> {
-  return {
+const signedParts = {
+  report: (row: DeviationRow, facts: DeviationFacts) => ({
     number: row.number,
     title: row.title,
     whatHappened: row.whatHappened,
     immediateActions: row.immediateActions,
+    lineStopped: row.lineStopped,
+    capsulesSegregated: row.capsulesSegregated,
+    affectedCount: row.affectedCount,
+    sampleDescription: row.sampleDescription,
     defectId: row.defectId,
     productId: row.productId,
     batchId: row.batchId,
     machineId: row.machineId,
     ringId: row.ringId,
+    occurredAt: row.occurredAt,
+    heldBatchIds: heldNow(facts).map((h) => h.batchId),
+  }),
+  triage: (row: DeviationRow) => ({
     classification: row.classification,
     classificationReason: row.classificationReason,
     severity: row.severity,
     occurrence: row.occurrence,
     detection: row.detection,
     rpn: row.rpn,
+    investigatorId: row.investigatorId,
+    dueAt: row.dueAt,
+  }),
+  investigation: (row: DeviationRow) => ({
     investigationReport: row.investigationReport,
     fiveWhys: row.fiveWhys,
     causeAnalysis: row.causeAnalysis,
@@ -179,14 +247,16 @@ export function deviationSignedContent(row: DeviationRow): Record<string, unknow
     rootCause: row.rootCause,
     productImpact: row.productImpact,
     capaRequired: row.capaRequired,
-    closureJustification: row.closureJustification,
-    cancelReason: row.cancelReason,
-    investigatorId: row.investigatorId,
-  };
-}
+  }),
+  recommendations: (facts: DeviationFacts) => heldNow(facts).map((h) => ({ batchId: h.batchId, recommended: h.recommendedDisposition })),
+  dispositions: (facts: DeviationFacts) =>
+    heldNow(facts).map((h) => ({ batchId: h.batchId, disposition: h.disposition, note: h.dispositionNote, samplingPlan: h.samplingPlan })),
+  evidence: (facts: DeviationFacts) => facts.evidence,
+};
 
 const label = (row: DeviationRow) => row.number ?? `draft #${row.id}`;
 
+/** Puts a batch on hold, releases or rejects it as a consequence of this deviation (audited on the batch). */
 export async function setBatchStatus(
   tx: Tx,
   actor: RecordActor,
@@ -195,19 +265,11 @@ export async function setBatchStatus(
   action: string,
   reason: string,
 ): Promise<void> {
-  const [before] = await tx.select().from(batches).where(eq(batches.id, batchId)).for('update');
-  if (!before || before.status === status) return;
-  await tx
-    .update(batches)
-    .set({ status, version: before.version + 1 })
-    .where(eq(batches.id, batchId));
-  await writeAudit(tx, {
-    actor: { id: actor.id, name: actor.name },
-    recordType: 'batch',
-    recordId: batchId,
+  await writeConsequence(tx, batchKind, batchId, {
+    actor,
     action,
-    changes: diffFields(before, { ...before, status }, ['status']),
     reason,
+    changes: (batch) => (batch.status === status ? null : { status }),
   });
 }
 
@@ -229,53 +291,21 @@ async function heldElsewhere(tx: Tx, batchId: number, deviationId: number): Prom
   return rows.length > 0;
 }
 
-interface Recipient {
-  id: number;
-  email: string;
+function notice(tx: Tx, after: DeviationRow, recipients: Recipient[], actor: RecordActor, n: Notice) {
+  return sendNotice(
+    tx,
+    { recordType: 'deviation', id: after.id, version: after.version, label: label(after), path: `/deviations/${after.id}`, linkLabel: 'Open the deviation' },
+    recipients,
+    actor,
+    n,
+  );
 }
 
-async function mailTo(
-  tx: Tx,
-  recipients: Recipient[],
-  actor: RecordActor,
-  after: DeviationRow,
-  m: { key: string; template: string; subject: string; heading: string; paragraphs: string[]; footer: string },
-): Promise<void> {
-  const env = getEnv();
-  const mail = renderMailLayout({
-    siteName: env.SITE_NAME,
-    recordNumber: label(after),
-    heading: m.heading,
-    paragraphs: m.paragraphs,
-    link: { url: new URL(`/deviations/${after.id}`, env.APP_URL).toString(), label: 'Open the deviation' },
-    footer: m.footer,
-  });
-  const seen = new Set<number>();
-  for (const r of recipients) {
-    // The person who acted knows already; nobody gets two copies.
-    if (r.id === actor.id || seen.has(r.id)) continue;
-    seen.add(r.id);
-    await enqueueMail(tx, {
-      dedupeKey: `${m.key}:${after.id}:v${after.version}:${r.id}`,
-      template: m.template,
-      to: { address: r.email, userId: r.id },
-      subject: m.subject,
-      text: mail.text,
-      html: mail.html,
-      recordType: 'deviation',
-      recordId: after.id,
-    });
-  }
-}
-
-async function activeUsers(tx: Tx, ids: (number | null)[]): Promise<Recipient[]> {
-  const wanted = ids.filter((i): i is number => i !== null);
-  if (wanted.length === 0) return [];
-  return tx
-    .select({ id: users.id, email: users.email })
-    .from(users)
-    .where(and(inArray(users.id, wanted), eq(users.active, true)));
-}
+/** States in which evidence may still be added: up to the decision (ALCOA+ contemporaneous). */
+const evidenceStates = ['draft', ...openDeviationStates] as const;
+const investigatorOnly = {
+  of: (row: DeviationRow) => [row.investigatorId],
+} as const;
 
 export const deviationKind = defineRecordKind({
   recordType: 'deviation',
@@ -283,8 +313,20 @@ export const deviationKind = defineRecordKind({
   table: deviations,
   machine: deviationMachine,
   readPermission: 'deviation.read',
+  owners: (t) => [t.raisedBy],
+  // A draft is its author's notebook until submitted, and a discarded one stays that.
+  visibleTo: (actor, row) => !(privateStates as readonly string[]).includes(row.status) || row.raisedBy === actor.id,
+  visibleWhere: (actor) => or(notInArray(deviations.status, [...privateStates]), eq(deviations.raisedBy, actor.id)),
+  related: deviationFacts,
+  context: (row, facts) => ({
+    raisedBy: row.raisedBy,
+    investigatorId: row.investigatorId,
+    classification: row.classification,
+    heldBatchesWithoutDisposition: heldNow(facts).filter((h) => h.disposition === null).length,
+  }),
   eventPermissions: {
     submit: 'deviation.edit_draft',
+    discard: 'deviation.edit_draft',
     start_triage: 'deviation.triage',
     assign_investigation: 'deviation.triage',
     submit_for_approval: 'deviation.investigate',
@@ -295,30 +337,103 @@ export const deviationKind = defineRecordKind({
   },
   eventLabels: deviationEventLabels,
   stateLabels: deviationStateLabels,
-  guardRefusals: deviationGuardRefusals,
-  ownerIds: (row) => [row.raisedBy],
-  // The count of held batches without a disposition needs a query, and context() is pure; the
-  // approve and close_minor commands check it inside the transaction instead (lib/deviations/commands.ts).
-  context: (row) => ({
-    raisedBy: row.raisedBy,
-    investigatorId: row.investigatorId,
-    classification: row.classification,
-    heldBatchesWithoutDisposition: 0,
-  }),
-  signedContent: deviationSignedContent,
+  guardRefusals: {
+    ...deviationGuardRefusals,
+    // 21 CFR 211.192: the investigation extends to every batch that may be affected; name the ones still open.
+    byApproverWithBatchesDisposed: (_row, facts) => undisposedRefusal(facts) ?? deviationGuardRefusals.byApproverWithBatchesDisposed,
+    minorByApproverWithBatchesDisposed: (row, facts) =>
+      row.classification === 'minor' ? (undisposedRefusal(facts) ?? deviationGuardRefusals.minorByApproverWithBatchesDisposed) : 'Only a deviation classified minor can be closed at triage.',
+  },
+  participants: {
+    author: { did: 'raised this deviation', of: (row) => [row.raisedBy] },
+    investigator: { did: 'investigated this deviation', of: (row) => [row.investigatorId] },
+  },
+  // A second person's judgement is the point of these steps (21 CFR 211.22(a), 211.192).
+  independence: {
+    approve: ['author', 'investigator'],
+    close_minor: ['author', 'investigator'],
+    return_for_rework: ['author', 'investigator'],
+    cancel: ['author', 'investigator'],
+  },
+  sections: {
+    draft: { label: 'Editing the draft', permission: 'deviation.edit_draft', states: ['draft'] },
+    holds: { label: 'Extending the holds', permission: 'deviation.triage', states: ['reported', 'triage'] },
+    triage: { label: 'Recording the triage', permission: 'deviation.triage', states: ['triage'] },
+    // One named author answers for the report they sign (common practice).
+    investigation: {
+      label: 'Editing the investigation',
+      permission: 'deviation.investigate',
+      states: ['investigation'],
+      holders: { ...investigatorOnly, refusal: 'Only the investigator assigned to this deviation edits its investigation.' },
+    },
+    recommendation: {
+      label: 'Recommending a disposition',
+      permission: 'deviation.investigate',
+      states: ['investigation'],
+      holders: { ...investigatorOnly, refusal: 'Only the investigator assigned to this deviation recommends the dispositions of its batches.' },
+    },
+    // Releasing or rejecting a batch is the quality unit's decision (21 CFR 211.22(a)), by a second person.
+    disposition: {
+      label: 'Deciding a batch’s disposition',
+      permission: 'deviation.approve',
+      states: ['triage', 'approval'],
+      independentOf: ['author', 'investigator'],
+      condition: {
+        holds: (row) => row.status !== 'triage' || row.classification === 'minor',
+        refusal: 'At triage only a deviation classified minor (to be closed there) takes dispositions; the others get them through the investigation.',
+      },
+    },
+    evidence: {
+      label: 'Adding evidence',
+      permission: 'attachment.add',
+      states: evidenceStates,
+      stateRefusal: 'Evidence can no longer be added once a deviation is closed or cancelled. Add a comment or raise a new record.',
+      ownScope: { of: (row) => [row.raisedBy], refusal: 'Only the person who raised this deviation and QA can add evidence to it.' },
+    },
+    comments: { label: 'Commenting', permission: 'deviation.read', states: 'any', bumpsVersion: false },
+  },
+  signedContent: {
+    investigation_complete: (row, facts) => ({
+      report: signedParts.report(row, facts),
+      triage: signedParts.triage(row),
+      investigation: signedParts.investigation(row),
+      recommendations: signedParts.recommendations(facts),
+      evidence: signedParts.evidence(facts),
+    }),
+    approved: (row, facts) => ({
+      report: signedParts.report(row, facts),
+      triage: signedParts.triage(row),
+      investigation: signedParts.investigation(row),
+      recommendations: signedParts.recommendations(facts),
+      dispositions: signedParts.dispositions(facts),
+      closure: { closureJustification: row.closureJustification, cancelReason: row.cancelReason },
+      evidence: signedParts.evidence(facts),
+    }),
+  },
+  signedPartLabels: {
+    report: 'the report as raised',
+    triage: 'the triage',
+    investigation: 'the investigation',
+    recommendations: 'the recommended dispositions',
+    dispositions: 'the batch dispositions',
+    closure: 'the closing justification',
+    evidence: 'the evidence files',
+  },
   auditFields: deviationAuditFields,
   toDto: toDeviationDto,
   effects: {
     holdBatches: {
       async inTransaction(tx, { actor, after }) {
         const held = await tx
-          .select({ batchId: deviationBatches.batchId })
+          .select({ batchId: deviationBatches.batchId, status: batches.status })
           .from(deviationBatches)
-          .where(and(eq(deviationBatches.deviationId, after.id), eq(deviationBatches.onHold, true)));
-        for (const { batchId } of held) {
-          const [batch] = await tx.select({ status: batches.status }).from(batches).where(eq(batches.id, batchId));
+          .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
+          .where(and(eq(deviationBatches.deviationId, after.id), eq(deviationBatches.onHold, true)))
+          // In id order, so two deviations holding the same batches queue instead of deadlocking.
+          .orderBy(asc(deviationBatches.batchId));
+        for (const { batchId, status } of held) {
           // A rejected batch is already out of the supply chain; a hold would only hide that decision.
-          if (!batch || batch.status === 'rejected') continue;
+          if (status === 'rejected') continue;
           await setBatchStatus(tx, actor, batchId, 'on_hold', 'hold', `Put on hold by deviation ${label(after)}`);
         }
       },
@@ -328,7 +443,8 @@ export const deviationKind = defineRecordKind({
         const held = await tx
           .select({ batchId: deviationBatches.batchId, disposition: deviationBatches.disposition })
           .from(deviationBatches)
-          .where(and(eq(deviationBatches.deviationId, after.id), eq(deviationBatches.onHold, true)));
+          .where(and(eq(deviationBatches.deviationId, after.id), eq(deviationBatches.onHold, true)))
+          .orderBy(asc(deviationBatches.batchId));
         for (const { batchId, disposition } of held) {
           const why = `Disposition ${disposition} on closing deviation ${label(after)}`;
           if (disposition === 'reject') {
@@ -342,7 +458,7 @@ export const deviationKind = defineRecordKind({
     },
     notifyInvestigatorAssigned: {
       async inTransaction(tx, { actor, after }) {
-        await mailTo(tx, await activeUsers(tx, [after.investigatorId]), actor, after, {
+        await notice(tx, after, await activeUsers(tx, [after.investigatorId]), actor, {
           key: 'deviation-assigned',
           template: 'deviation_assigned',
           subject: `Deviation ${label(after)} assigned to you for investigation`,
@@ -360,13 +476,10 @@ export const deviationKind = defineRecordKind({
     },
     notifyApprovalRequested: {
       async inTransaction(tx, { actor, after }) {
-        const approvers = await tx
-          .select({ id: users.id, email: users.email })
-          .from(users)
-          .where(and(eq(users.active, true), eq(users.role, 'qa_approver')));
-        // Segregation of duties: the author and the investigator may not approve, so they are not asked.
-        const eligible = approvers.filter((a) => a.id !== after.raisedBy && a.id !== after.investigatorId);
-        await mailTo(tx, eligible, actor, after, {
+        // Only the approvers who may approve it (segregation of duties) are asked.
+        const facts = await deviationFacts(tx, after);
+        const eligible = independentPeople(deviationKind, after, facts, 'approve', await activeUsersWithRole(tx, ['qa_approver']));
+        await notice(tx, after, eligible, actor, {
           key: 'deviation-approval',
           template: 'deviation_approval_requested',
           subject: `Deviation ${label(after)} awaits approval`,
@@ -381,7 +494,7 @@ export const deviationKind = defineRecordKind({
     },
     notifyReturnedForRework: {
       async inTransaction(tx, { actor, after }) {
-        await mailTo(tx, await activeUsers(tx, [after.investigatorId]), actor, after, {
+        await notice(tx, after, await activeUsers(tx, [after.investigatorId]), actor, {
           key: 'deviation-returned',
           template: 'deviation_returned',
           subject: `Deviation ${label(after)} returned for rework`,
@@ -393,7 +506,7 @@ export const deviationKind = defineRecordKind({
     },
     notifyClosed: {
       async inTransaction(tx, { actor, after }) {
-        await mailTo(tx, await activeUsers(tx, [after.raisedBy, after.investigatorId]), actor, after, {
+        await notice(tx, after, await activeUsers(tx, [after.raisedBy, after.investigatorId]), actor, {
           key: 'deviation-closed',
           template: 'deviation_closed',
           subject: `Deviation ${label(after)} closed`,

@@ -16,10 +16,12 @@ export const deviationStateLabels: Record<DeviationState, string> = {
   approval: 'Awaiting approval',
   closed: 'Closed',
   cancelled: 'Cancelled',
+  discarded: 'Discarded draft',
 };
 
 export const deviationEventLabels: Record<DeviationEventType, string> = {
   submit: 'Submit',
+  discard: 'Discard the draft',
   start_triage: 'Start triage',
   close_minor: 'Close as minor',
   assign_investigation: 'Open the investigation',

@@ -1,6 +1,5 @@
 import 'server-only';
 import { eq } from 'drizzle-orm';
-import { db } from '../../db/client';
 import { machines } from '../../db/schema';
 import { ValidationError } from '../errors';
 import { type RecordActor } from '../records/kind';
@@ -73,22 +72,22 @@ const duplicateKey = (err: unknown) =>
 
 /** Puts a new ring into service on a machine (master data: administrators). */
 export async function registerRing(actor: RecordActor, input: RegisterRingInput): Promise<RingOutcome> {
-  const [machine] = await db
-    .select({ id: machines.id, capsuleSizes: machines.capsuleSizes, active: machines.active })
-    .from(machines)
-    .where(eq(machines.id, input.machineId));
-  if (!machine || !machine.active) {
-    throw new ValidationError('Pick an active machine.', { machineId: ['Pick an active machine.'] });
-  }
-  if (!machine.capsuleSizes.split(',').includes(input.capsuleSize)) {
-    const message = `This machine has no change parts for size ${input.capsuleSize} (it takes ${machine.capsuleSizes}).`;
-    throw new ValidationError(message, { capsuleSize: [message] });
-  }
   try {
-    return await createRecord(ringKind, {
-      actor,
-      permission: 'masterdata.manage',
-      values: { serial: input.serial, machineId: input.machineId, capsuleSize: input.capsuleSize, condition: input.condition },
+    return await createRecord(ringKind, actor, 'masterdata.manage', async (tx) => {
+      const [machine] = await tx
+        .select({ id: machines.id, capsuleSizes: machines.capsuleSizes, active: machines.active })
+        .from(machines)
+        .where(eq(machines.id, input.machineId));
+      if (!machine || !machine.active) {
+        throw new ValidationError('Pick an active machine.', { machineId: ['Pick an active machine.'] });
+      }
+      if (!machine.capsuleSizes.split(',').includes(input.capsuleSize)) {
+        const message = `This machine has no change parts for size ${input.capsuleSize} (it takes ${machine.capsuleSizes}).`;
+        throw new ValidationError(message, { capsuleSize: [message] });
+      }
+      return {
+        values: { serial: input.serial, machineId: input.machineId, capsuleSize: input.capsuleSize, condition: input.condition },
+      };
     });
   } catch (err) {
     if (duplicateKey(err)) {

@@ -5,12 +5,13 @@ import { fillingRings, machines } from '../../db/schema';
 import { ringStates, type RingState } from '../../workflows/states';
 import { assertCan, can } from '../auth/permissions';
 import { NotFoundError } from '../errors';
-import { type RecordActor, allowedEventsFor } from '../records/kind';
+import { type BlockedEvent, type RecordActor, abilitiesOf } from '../records/kind';
+import { getVisibleRow, loadRelated, signedContentOf } from '../records/write-path';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';
 import type { AllowedEvent } from '../records/workflow';
 import { type SignatureDto, listSignatures } from '../signatures';
 import type { RingEventType } from '../../workflows/filling-ring';
-import { type RingDto, ringKind, ringSignedContent, toRingDto } from './ring-kind';
+import { type RingDto, ringKind, toRingDto } from './ring-kind';
 
 export type { RingDto } from './ring-kind';
 
@@ -124,6 +125,8 @@ export interface RingDetailDto {
   machine: MachineSummaryDto;
   /** What this person may do to the ring now, with the reason and signature each asks for. */
   allowedEvents: AllowedEvent<RingEventType>[];
+  /** What their role does now but this ring keeps from them, and why (segregation of duties). */
+  blockedEvents: BlockedEvent<RingEventType>[];
   history: HistoryEntryDto[];
   signatures: SignatureDto[];
   /** Null when the person's role may not read audit trails. */
@@ -131,20 +134,21 @@ export interface RingDetailDto {
 }
 
 export async function getRingDetail(actor: RecordActor, id: number, dbOrTx: DbOrTx = db): Promise<RingDetailDto> {
-  if (!can(actor, 'equipment.read')) throw new NotFoundError('This filling ring');
-  const [row] = await dbOrTx.select().from(fillingRings).where(eq(fillingRings.id, id));
-  if (!row) throw new NotFoundError('This filling ring');
+  const row = await getVisibleRow(dbOrTx, ringKind, id, actor);
+  const facts = await loadRelated(ringKind, dbOrTx, row);
+  const abilities = abilitiesOf(ringKind, actor, row, facts);
   const [machine] = await dbOrTx.select(machineColumns).from(machines).where(eq(machines.id, row.machineId));
   if (!machine) throw new Error(`ring ${id} points at missing machine ${row.machineId}`);
   const [history, signatures, audit] = await Promise.all([
     listStateHistory(dbOrTx, ringKind, id),
-    listSignatures(dbOrTx, 'filling_ring', id, ringSignedContent(row)),
+    listSignatures(dbOrTx, 'filling_ring', id, (meaning) => signedContentOf(ringKind, meaning, row, facts), ringKind.signedPartLabels),
     can(actor, 'audit.read') ? listAuditTrail(dbOrTx, 'filling_ring', id) : Promise.resolve(null),
   ]);
   return {
     ring: toRingDto(row),
     machine: toMachineDto(machine),
-    allowedEvents: allowedEventsFor(ringKind, actor, row),
+    allowedEvents: abilities.allowedEvents,
+    blockedEvents: abilities.blockedEvents,
     history,
     signatures,
     audit,

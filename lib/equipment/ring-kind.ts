@@ -6,6 +6,7 @@ import type { RingState } from '../../workflows/states';
 import { getEnv } from '../env';
 import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
+import { lastSenderOf } from '../records/facts';
 import { defineRecordKind } from '../records/kind';
 import { type RingCondition, ringConditionLabels, ringEventLabels, ringStateLabels } from './labels';
 
@@ -43,16 +44,23 @@ export function toRingDto(row: RingRow): RingDto {
 }
 
 /** What a signature on a ring vouches for: identity, placement, condition and status with its reason. */
-export function ringSignedContent(row: RingRow): Record<string, unknown> {
+function ringSignedContent(row: RingRow): Record<string, unknown> {
   return {
-    serial: row.serial,
-    machineId: row.machineId,
-    capsuleSize: row.capsuleSize,
-    condition: row.condition,
-    status: row.status,
-    statusReason: row.statusReason,
-    retiredAt: row.retiredAt,
+    ring: {
+      serial: row.serial,
+      machineId: row.machineId,
+      capsuleSize: row.capsuleSize,
+      condition: row.condition,
+      status: row.status,
+      statusReason: row.statusReason,
+      retiredAt: row.retiredAt,
+    },
   };
+}
+
+/** Who took the ring out of service most recently: they do not also judge it fit or retire it. */
+export interface RingFacts {
+  quarantinedBy: number | null;
 }
 
 export const ringKind = defineRecordKind({
@@ -69,8 +77,15 @@ export const ringKind = defineRecordKind({
   eventLabels: ringEventLabels,
   stateLabels: ringStateLabels,
   guardRefusals: ringGuardRefusals,
+  related: async (dbOrTx, row): Promise<RingFacts> => ({ quarantinedBy: await lastSenderOf(dbOrTx, 'filling_ring', row.id, 'quarantine') }),
   context: () => ({}),
-  signedContent: ringSignedContent,
+  participants: {
+    quarantiner: { did: 'took this ring out of service', of: (_row, facts) => [facts.quarantinedBy] },
+  },
+  // A second person inspects what the first found wrong (segregation of duties; common practice).
+  independence: { return_to_service: ['quarantiner'], retire: ['quarantiner'] },
+  signedContent: { verified: ringSignedContent, approved: ringSignedContent },
+  signedPartLabels: { ring: 'the ring’s condition and status' },
   auditFields: ['condition', 'statusReason', 'retiredAt'],
   toDto: toRingDto,
   effects: {

@@ -13,7 +13,8 @@ export { formatRecordNumber, parseRecordNumber } from './number-format';
  * Human record numbers, gap-free per prefix and year. The counter row is bumped with
  * LAST_INSERT_ID(expr), which hands the new value back on this connection only, and stays locked
  * until the creating transaction ends: concurrent creations queue on it, and a creation that
- * rolls back gives its number back to the next one.
+ * rolls back gives its number back to the next one. A number is allocated after the record's own
+ * row is locked and before the audit-chain head (lib/records/transaction.ts), always in that order.
  *
  * The first number of a year needs the row to exist. If the creating transaction inserted it and
  * then rolled back, the transactions queued behind it would deadlock on the vanished row (InnoDB
@@ -43,9 +44,9 @@ export async function allocateNumber(tx: Tx, type: NumberedRecordType, year: num
   }
   const prefix = numberPrefixes[type];
   await ensureCounterRow(tx, prefix, year);
+  // A plain UPDATE takes the row's exclusive lock at once (an upsert would take a shared one first).
   await tx.execute(
-    sql`INSERT INTO record_counters (prefix, year, last_value) VALUES (${prefix}, ${year}, LAST_INSERT_ID(1))
-        ON DUPLICATE KEY UPDATE last_value = LAST_INSERT_ID(last_value + 1)`,
+    sql`UPDATE record_counters SET last_value = LAST_INSERT_ID(last_value + 1) WHERE prefix = ${prefix} AND year = ${year}`,
   );
   const [rows] = (await tx.execute(sql`SELECT LAST_INSERT_ID() AS value`)) as unknown as [{ value: number | string }[]];
   const value = Number(rows[0]?.value);

@@ -3,15 +3,16 @@ import { and, asc, eq } from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../../db/client';
 import { signatures, users } from '../../db/schema';
 import { writeAudit } from '../audit';
-import { sqlUtc } from '../audit/hash';
+import { canonicalJson, sqlUtc } from '../audit/hash';
 import { verifySignaturePassword } from '../auth/credentials';
 import { roleLabels } from '../auth/roles';
 import { ValidationError } from '../errors';
 import type { RecordType } from '../records/types';
-import { signatureContentHash, signatureManifestHash } from './hash';
+import { now } from '../clock';
+import { changedSignatureParts, signatureContentHash, signatureManifestHash, signaturePartHashes } from './hash';
 import { type SignatureMeaning, isSignatureMeaning, signatureMeaningLabels } from './meanings';
 
-export { signatureContentHash, signatureManifestHash } from './hash';
+export { signatureContentHash, signatureManifestHash, signaturePartHashes } from './hash';
 export * from './meanings';
 
 /*
@@ -49,7 +50,11 @@ export interface SignInput {
   recordId: number;
   /** The version of the record being signed, as it stands in this transaction. */
   recordVersion: number;
-  /** The record's GMP fields as stored (re-read after any update, so types match later reads). */
+  /**
+   * What the signature covers, as the record kind declares it for this meaning, read after any
+   * update so types match later reads. Each top-level key is a part (the facts, the investigation,
+   * the evidence ...) that a later mismatch can name.
+   */
   content: Record<string, unknown>;
   meaning: SignatureMeaning;
   reason?: string | null;
@@ -68,6 +73,10 @@ export interface SignatureDto {
   recordVersion: number;
   /** False when the record's content now differs from what was signed: "record changed after signing". */
   matches: boolean;
+  /** When it no longer matches: the parts that changed, in the record kind's words (empty for older signatures). */
+  changedParts: string[];
+  /** A later signature of the same meaning on the same record (after a rework or a reopen), or null. */
+  supersededBy: number | null;
   /** False when the stored manifestation (name, title, meaning, time) no longer matches its hash. */
   intact: boolean;
 }
@@ -87,6 +96,7 @@ export async function sign(tx: Tx, signer: VerifiedSigner, input: SignInput): Pr
   if (!user || !user.active) throw new ValidationError('Your account is deactivated.', { password: ['Your account is deactivated.'] });
 
   const contentHash = signatureContentHash(input.recordType, input.recordId, input.recordVersion, input.content);
+  const contentParts = canonicalJson(signaturePartHashes(input.recordType, input.recordId, input.recordVersion, input.content));
   const manifest = {
     recordType: input.recordType,
     recordId: input.recordId,
@@ -95,8 +105,9 @@ export async function sign(tx: Tx, signer: VerifiedSigner, input: SignInput): Pr
     printedName: user.name,
     printedTitle: user.title || roleLabels[user.role],
     meaning: input.meaning,
-    signedAt: sqlUtc(new Date()),
+    signedAt: sqlUtc(now()),
     contentHash,
+    contentParts,
   };
   const [row] = await tx
     .insert(signatures)
@@ -117,7 +128,7 @@ export async function sign(tx: Tx, signer: VerifiedSigner, input: SignInput): Pr
     ],
     reason: input.reason ?? null,
   });
-  return toDto({ id, ...manifest, signatureHash: signatureManifestHash(manifest) }, contentHash);
+  return toDto({ id, ...manifest, signatureHash: signatureManifestHash(manifest) }, { contentHash, parts: {} }, {}, null);
 }
 
 /** verifySigner + sign in a transaction of their own, for a signature that changes nothing else. */
@@ -132,9 +143,32 @@ export async function signWithPassword(
 
 type SignatureRow = typeof signatures.$inferSelect;
 
-function toDto(row: SignatureRow, currentContentHash: string): SignatureDto {
+interface CurrentContent {
+  contentHash: string;
+  parts: Record<string, string>;
+}
+
+function parseParts(text: string | null): Record<string, string> | null {
+  if (!text) return null;
+  try {
+    const parsed = JSON.parse(text) as unknown;
+    return parsed && typeof parsed === 'object' ? (parsed as Record<string, string>) : null;
+  } catch {
+    return null;
+  }
+}
+
+function toDto(
+  row: SignatureRow,
+  current: CurrentContent,
+  partLabels: Record<string, string>,
+  supersededBy: number | null,
+): SignatureDto {
   const meaning = isSignatureMeaning(row.meaning) ? row.meaning : null;
   const { id: _id, signatureHash, ...manifest } = row;
+  const matches = row.contentHash === current.contentHash;
+  const signedParts = parseParts(row.contentParts);
+  const changed = matches || !signedParts ? [] : changedSignatureParts(signedParts, current.parts);
   return {
     id: row.id,
     userId: row.userId,
@@ -144,26 +178,47 @@ function toDto(row: SignatureRow, currentContentHash: string): SignatureDto {
     meaningLabel: meaning ? signatureMeaningLabels[meaning] : `Unknown meaning "${row.meaning}"`,
     signedAt: `${row.signedAt.replace(' ', 'T')}Z`,
     recordVersion: row.recordVersion,
-    matches: row.contentHash === currentContentHash,
+    matches,
+    changedParts: changed.map((part) => partLabels[part] ?? part.replace(/_/g, ' ')),
+    supersededBy,
     intact: meaning !== null && signatureManifestHash(manifest) === signatureHash,
   };
 }
 
 /**
- * The record's signatures, oldest first, each compared with the record's current content: the
- * hash is recomputed for the version the signature names, so only a change of content (not the
- * version counter alone) makes it stop matching.
+ * What the record holds now, for one signature meaning: the content the record kind says that
+ * meaning covers (lib/records declares it), or null for a meaning the kind does not sign.
+ */
+export type CurrentSignedContent = (meaning: string) => Record<string, unknown> | null;
+
+/**
+ * The record's signatures, oldest first, each compared with what the record holds now for its
+ * meaning: the hash is recomputed for the version the signature names, so only a change of content
+ * (not the version counter alone) makes it stop matching, and the changed parts are named.
  */
 export async function listSignatures(
   dbOrTx: DbOrTx,
   recordType: RecordType,
   recordId: number,
-  currentContent: Record<string, unknown>,
+  currentContent: CurrentSignedContent,
+  partLabels: Record<string, string> = {},
 ): Promise<SignatureDto[]> {
   const rows = await dbOrTx
     .select()
     .from(signatures)
     .where(and(eq(signatures.recordType, recordType), eq(signatures.recordId, recordId)))
     .orderBy(asc(signatures.id));
-  return rows.map((r) => toDto(r, signatureContentHash(recordType, recordId, r.recordVersion, currentContent)));
+  return rows.map((r) => {
+    const content = currentContent(r.meaning) ?? {};
+    const later = rows.find((o) => o.id > r.id && o.meaning === r.meaning);
+    return toDto(
+      r,
+      {
+        contentHash: signatureContentHash(recordType, recordId, r.recordVersion, content),
+        parts: signaturePartHashes(recordType, recordId, r.recordVersion, content),
+      },
+      partLabels,
+      later?.id ?? null,
+    );
+  });
 }

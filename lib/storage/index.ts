@@ -4,7 +4,7 @@ import type { Readable } from 'node:stream';
 import { Client } from 'minio';
 import type { DbOrTx } from '../../db/client';
 import { attachments } from '../../db/schema';
-import { writeAudit } from '../audit';
+import type { FieldChange } from '../audit';
 import { getEnv } from '../env';
 import { ValidationError } from '../errors';
 import type { RecordType } from '../records/types';
@@ -107,17 +107,15 @@ export interface AttachmentInput {
   contentType: string;
   sizeBytes: number;
   sha256: string;
+  uploadedBy: number;
 }
 
 /**
- * Records an uploaded object against a record, with its audit entry, inside the caller's
- * transaction. The caller has already checked that the actor may change the record.
+ * Records an uploaded object against a record inside the caller's transaction, and returns the
+ * audit change to record with it. The caller is the record's write path (lib/attachments), which
+ * has checked that the actor may add evidence to it now.
  */
-export async function recordAttachment(
-  tx: DbOrTx,
-  actor: { id: number; name: string },
-  input: AttachmentInput,
-): Promise<{ id: number }> {
+export async function recordAttachment(tx: DbOrTx, input: AttachmentInput): Promise<{ id: number; change: FieldChange }> {
   const [row] = await tx
     .insert(attachments)
     .values({
@@ -128,21 +126,15 @@ export async function recordAttachment(
       contentType: input.contentType,
       sizeBytes: input.sizeBytes,
       sha256: input.sha256,
-      uploadedBy: actor.id,
+      uploadedBy: input.uploadedBy,
     })
     .$returningId();
-  await writeAudit(tx, {
-    actor,
-    recordType: input.recordType,
-    recordId: input.recordId,
-    action: 'attachment_added',
-    changes: [
-      {
-        field: 'attachment',
-        from: null,
-        to: { id: row!.id, fileName: input.fileName, contentType: input.contentType, sizeBytes: input.sizeBytes, sha256: input.sha256 },
-      },
-    ],
-  });
-  return { id: row!.id };
+  return {
+    id: row!.id,
+    change: {
+      field: 'attachment',
+      from: null,
+      to: { id: row!.id, fileName: input.fileName, contentType: input.contentType, sizeBytes: input.sizeBytes, sha256: input.sha256 },
+    },
+  };
 }

@@ -34,6 +34,7 @@ attachment.add            own  own  any  any  -
 capa.read                 any  any  any  any  any
 capa.create               -    -    any  any  -
 capa.plan                 -    -    any  -    -
+capa.reassign             -    -    own  any  -
 capa.complete_action      own  own  own  own  -
 capa.approve              -    -    -    any  -
 capa.cancel               -    -    any  any  -

@@ -27,9 +27,9 @@ async function expectDenied(statement: ReturnType<typeof sql>) {
 
 describe('append-only records for the application user', () => {
   it('cannot UPDATE or DELETE audit entries, signatures or state history', async () => {
-    const approver = await makeUser('qa_approver');
+    const [operator, approver] = await Promise.all([makeUser('operator'), makeUser('qa_approver')]);
     const ring = await makeRing();
-    await quarantineRing(approver, { id: ring.id, version: ring.version, reason: 'Dent found' });
+    await quarantineRing(operator, { id: ring.id, version: ring.version, reason: 'Dent found' });
     await retireRing(approver, { id: ring.id, version: ring.version + 1, reason: 'Beyond repair', password: testPassword });
 
     const [entry] = await db

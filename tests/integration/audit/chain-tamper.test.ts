@@ -1,4 +1,4 @@
-import { eq } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, connect, db } from '@/db/client';
 import { auditEntries } from '@/db/schema';
@@ -27,7 +27,7 @@ afterAll(async () => {
 
 async function entryFor(reason: string) {
   const [user, ring] = await Promise.all([makeUser('qa_investigator'), makeRing()]);
-  const { id } = await db.transaction((tx) =>
+  await db.transaction((tx) =>
     writeAudit(tx, {
       actor: { id: user.id, name: user.name },
       recordType: 'filling_ring',
@@ -37,7 +37,10 @@ async function entryFor(reason: string) {
       reason,
     }),
   );
-  const [row] = await db.select().from(auditEntries).where(eq(auditEntries.id, id));
+  const [row] = await db
+    .select()
+    .from(auditEntries)
+    .where(and(eq(auditEntries.recordType, 'filling_ring'), eq(auditEntries.recordId, ring.id), eq(auditEntries.action, 'chain_check')));
   return row!;
 }
 

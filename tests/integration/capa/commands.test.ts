@@ -336,12 +336,18 @@ describe('the effectiveness decision', () => {
     );
   });
 
-  it('cancels with a reason and a QA signature through the event route, and not by a supervisor', async () => {
+  it('cancels with a reason and a QA signature through the event route, not by a supervisor, and not by its owner', async () => {
     const p = await plannedCapa();
     await expect(
       sendCapaEvent(p.supervisor, p.record.id, { event: 'cancel', version: p.record.version, reason: 'Raised twice.', password: testPassword }),
     ).rejects.toBeInstanceOf(ForbiddenError);
-    const out = await sendCapaEvent(p.owner, p.record.id, { event: 'cancel', version: p.record.version, reason: 'Raised twice.', password: testPassword });
+    // Segregation of duties: the owner does not cancel their own CAPA (it could hide an ineffective one).
+    const own = await sendCapaEvent(p.owner, p.record.id, { event: 'cancel', version: p.record.version, reason: 'Raised twice.', password: testPassword }).catch(
+      (e: unknown) => e,
+    );
+    expect(own).toBeInstanceOf(ForbiddenError);
+    expect((own as Error).message).toBe('“Cancel the CAPA” is for another person: you own this CAPA (segregation of duties).');
+    const out = await sendCapaEvent(p.owner2, p.record.id, { event: 'cancel', version: p.record.version, reason: 'Raised twice.', password: testPassword });
     expect(out.record).toMatchObject({ status: 'cancelled', cancelReason: 'Raised twice.' });
     const sigs = await db.select().from(signatures).where(and(eq(signatures.recordType, 'capa'), eq(signatures.recordId, p.record.id)));
     expect(sigs.map((s) => s.meaning)).toEqual(['approved']);

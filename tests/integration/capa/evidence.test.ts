@@ -7,7 +7,7 @@ import { uploadAttachment } from '@/lib/attachments/commands';
 import { getAttachRefusal, getDownloadLink, listAttachments } from '@/lib/attachments/queries';
 import { addAction, approvePlan, cancelCapa, completeAction, createCapa, openEffectivenessCheck, recordEffective, startImplementation, updatePlan } from '@/lib/capa/commands';
 import { evidenceEmptyMessage } from '@/lib/capa/evidence-text';
-import { ForbiddenError, NotFoundError, ValidationError } from '@/lib/errors';
+import { ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '@/lib/errors';
 import { ensureBucket } from '@/lib/storage';
 import { pdf, tinyPng } from '../../unit/attachments/sample-files';
 import { makeUser, testPassword } from '../support/fixtures';
@@ -163,7 +163,7 @@ describe('evidence files on a CAPA', () => {
   it('refuses an operator or supervisor who owns no action of the CAPA, and an administrator (21 CFR 11.10(d))', async () => {
     const c = await inImplementation();
     for (const who of [c.otherOperator, c.supervisor, await makeUser('admin')]) {
-      expect(await getAttachRefusal('capa', c.record.id, who)).toMatch(/Only the CAPA owner, QA and the owners of its actions/);
+      expect(await getAttachRefusal('capa', c.record.id, who)).toMatch(who.role === 'admin' ? /does not allow this \(attachment: add\)/ : /Only the CAPA owner, QA and, once the plan is approved, the owners of its actions/);
       await expect(uploadAttachment(who, { recordType: 'capa', recordId: c.record.id, file: file() })).rejects.toBeInstanceOf(ForbiddenError);
     }
     expect(await db.select().from(attachments).where(and(eq(attachments.recordType, 'capa'), eq(attachments.recordId, c.record.id)))).toHaveLength(0);
@@ -203,17 +203,18 @@ describe('evidence files on a CAPA', () => {
     const closed = await recordEffective(c.approver, { id: c.record.id, version: check.record.version, password: testPassword });
     expect(closed.record.status).toBe('closed_effective');
     for (const who of [c.actionOwner, c.owner, c.approver, c.otherQa]) {
-      expect(await getAttachRefusal('capa', c.record.id, who)).toMatch(/closed as effective; evidence can no longer be added/);
-      await expect(uploadAttachment(who, { recordType: 'capa', recordId: c.record.id, file: file() })).rejects.toBeInstanceOf(ForbiddenError);
+      expect(await getAttachRefusal('capa', c.record.id, who)).toMatch(/can no longer be added once a CAPA is closed or cancelled/);
+      // Closed to everyone by its state: 409, whoever asks.
+      await expect(uploadAttachment(who, { recordType: 'capa', recordId: c.record.id, file: file() })).rejects.toBeInstanceOf(InvalidTransitionError);
     }
     expect(await listAttachments('capa', c.record.id, c.approver)).toHaveLength(1);
   });
 
   it('refuses everybody once the CAPA is cancelled (EU GMP Annex 11 §9)', async () => {
     const c = await inImplementation();
-    await cancelCapa(c.owner, { id: c.record.id, version: c.record.version, reason: 'Raised twice; see the other CAPA.', password: testPassword });
+    await cancelCapa(c.otherQa, { id: c.record.id, version: c.record.version, reason: 'Raised twice; see the other CAPA.', password: testPassword });
     for (const who of [c.actionOwner, c.owner]) {
-      await expect(uploadAttachment(who, { recordType: 'capa', recordId: c.record.id, file: file() })).rejects.toBeInstanceOf(ForbiddenError);
+      await expect(uploadAttachment(who, { recordType: 'capa', recordId: c.record.id, file: file() })).rejects.toBeInstanceOf(InvalidTransitionError);
     }
   });
 

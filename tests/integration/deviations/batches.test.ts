@@ -261,9 +261,9 @@ describe('the final disposition at approval', () => {
     version = (await recordDisposition(d.investigator, { id: d.id, version, batchId: rejected.id, disposition: 'reject', note: 'Split bodies throughout.' })).version;
     version = await toApproval(d);
 
-    // 21 CFR 211.192: no closure while a held batch has no disposition; the refusal points at the form.
+    // 21 CFR 211.192: no closure while a held batch has no disposition; the refusal (409) names the lot and points at the form.
     const refused = await approveDeviation(d.approver, { id: d.id, version, password: testPassword }).catch((e: unknown) => e);
-    expect(refused).toBeInstanceOf(ValidationError);
+    expect(refused).toBeInstanceOf(InvalidTransitionError);
     expect((refused as Error).message).toContain(heldElsewhere.lot);
     expect((refused as Error).message).toMatch(/Held batches/);
 

@@ -18,7 +18,7 @@ import {
 } from '@/lib/deviations/commands';
 import type { DeviationDto } from '@/lib/deviations/kind';
 import { saveInvestigation } from '@/lib/deviations/investigation';
-import { ConflictError, ForbiddenError, InvalidTransitionError, ValidationError } from '@/lib/errors';
+import { ConflictError, ForbiddenError, InvalidTransitionError, NotFoundError, ValidationError } from '@/lib/errors';
 import type { RecordActor } from '@/lib/records/kind';
 import { makeUser, testPassword } from '../support/fixtures';
 
@@ -125,7 +125,7 @@ describe('raising a deviation', () => {
     const draft = await createDraft(operator, draftInput([batchId]));
     // Common practice: numbers are given on submission so abandoned drafts leave no gaps in the register.
     expect(draft.record).toMatchObject({ status: 'draft', number: null, raisedBy: operator.id, batchId });
-    expect(draft.allowedEvents.map((e) => e.type)).toEqual(['submit']);
+    expect(draft.allowedEvents.map((e) => e.type)).toEqual(['submit', 'discard']);
     // The hold takes effect when the deviation is reported, not while it is a draft (common practice).
     expect(await batchStatus(batchId)).toBe('in_process');
 
@@ -175,15 +175,15 @@ describe('raising a deviation', () => {
     );
   });
 
-  it("refuses another operator editing or submitting someone else's draft (own scope, common practice)", async () => {
+  it("answers someone else's draft as missing: another operator can neither edit nor submit it, nor learn it exists (common practice)", async () => {
     const [author, other] = await Promise.all([makeUser('operator'), makeUser('operator')]);
     const batchId = await makeBatch();
     const draft = await createDraft(author, draftInput([batchId]));
     const { id, version } = draft.record;
     await expect(updateDraft(other, { ...draftInput([batchId]), id, version, title: 'Rewritten by someone else' })).rejects.toThrow(
-      ForbiddenError,
+      NotFoundError,
     );
-    await expect(submitDeviation(other, { id, version })).rejects.toThrow(ForbiddenError);
+    await expect(submitDeviation(other, { id, version })).rejects.toThrow(NotFoundError);
     const row = await deviation(id);
     expect(row).toMatchObject({ status: 'draft', version, title: draftInput([]).title, number: null });
     expect(await batchStatus(batchId)).toBe('in_process');
@@ -280,7 +280,7 @@ describe('approval and batch disposition', () => {
   it('refuses to approve while a held batch has no disposition (21 CFR 211.192), changing nothing', async () => {
     const { approver, batchId, record } = await deviationInApproval();
     const err = await approveDeviation(approver, { id: record.id, version: record.version, password: testPassword }).catch((e) => e);
-    expect(err).toBeInstanceOf(ValidationError);
+    expect(err).toBeInstanceOf(InvalidTransitionError);
     expect((err as Error).message).toMatch(/Every held batch needs a disposition/);
     expect(await deviation(record.id)).toMatchObject({ status: 'approval', version: record.version });
     expect(await batchStatus(batchId)).toBe('on_hold');

@@ -56,7 +56,7 @@ describe('getDeviationDetail', () => {
     const { author, draft } = await draftBy();
     const mine = await getDeviationDetail(draft.id, author);
     expect(mine.deviation).toMatchObject({ id: draft.id, status: 'draft', number: null });
-    expect(mine.allowedEvents.map((e) => e.type)).toEqual(['submit']);
+    expect(mine.allowedEvents.map((e) => e.type)).toEqual(['submit', 'discard']);
     // Common practice: a draft is its author's until submitted; another person cannot tell it exists.
     for (const role of ['operator', 'qa_investigator', 'qa_approver', 'admin'] as const) {
       const other = await makeUser(role);

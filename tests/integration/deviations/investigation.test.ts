@@ -180,7 +180,7 @@ describe('saving the investigation', () => {
     const [otherInvestigator, approver] = await Promise.all([makeUser('qa_investigator'), makeUser('qa_approver')]);
     const input = completeInput(record.id, record.version);
     await expect(saveInvestigation(otherInvestigator, input)).rejects.toThrow(ForbiddenError);
-    await expect(saveInvestigation(otherInvestigator, input)).rejects.toThrow(/assigned investigator/);
+    await expect(saveInvestigation(otherInvestigator, input)).rejects.toThrow(/investigator assigned to this deviation/);
     await expect(saveInvestigation(operator, input)).rejects.toThrow(ForbiddenError);
     await expect(saveInvestigation(approver, input)).rejects.toThrow(ForbiddenError);
     const stored = await row(record.id);
@@ -320,7 +320,7 @@ describe('reading the investigation', () => {
     const theirs = await getInvestigationView(record.id, operator);
     expect(theirs.canEdit).toBe(false);
     const other = await makeUser('qa_investigator');
-    expect(await getInvestigationView(record.id, other)).toMatchObject({ canEdit: false, editRefusal: expect.stringMatching(/assigned investigator/) });
+    expect(await getInvestigationView(record.id, other)).toMatchObject({ canEdit: false, editRefusal: expect.stringMatching(/investigator assigned to this deviation/) });
   });
 
   it("hides someone else's draft as not found (common practice)", async () => {

@@ -38,9 +38,7 @@ async function createMany(year: number, ok: number, failing: number) {
   const attempts = Array.from({ length: ok + failing }, (_, i) => i % Math.ceil((ok + failing) / failing) === 1);
   return Promise.allSettled(
     attempts.map((fails, i) =>
-      createRecord(numberedCapaKind, {
-        actor: investigator,
-        permission: 'capa.create',
+      createRecord(numberedCapaKind, investigator, 'capa.create', {
         number: { type: 'capa', year },
         values: {
           title: `Numbering check ${i}`,

@@ -22,9 +22,7 @@ afterAll(closeDb);
 type DeviationRow = typeof deviations.$inferSelect;
 
 async function draftBy(user: Awaited<ReturnType<typeof makeUser>>, kind = draftDeviationKind()) {
-  const out = await createRecord(kind, {
-    actor: user,
-    permission: 'deviation.raise',
+  const out = await createRecord(kind, user, 'deviation.raise', {
     values: {
       title: `Write path check ${Date.now()}`,
       whatHappened: 'Capsules found unseparated in the reject bin',

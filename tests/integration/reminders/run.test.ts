@@ -133,6 +133,20 @@ describe('openDueEffectivenessChecks', () => {
       actionsCompletedAt: completed,
       recurrenceCriterion: JSON.stringify({ machineId: machine.id, days: 10 }),
     });
+    // The CAPA's rules count its actions from the actions themselves: one, completed by an operator.
+    const doer = await makeUser('operator');
+    await db.insert(capaActions).values({
+      capaId,
+      kind: 'corrective',
+      category: 'machine_setting',
+      description: 'Re-set the vacuum on the separating station',
+      ownerId: doer.id,
+      createdBy: owner.id,
+      round: 1,
+      dueAt: completed,
+      completedAt: completed,
+      completedBy: doer.id,
+    });
     expect((await openDueEffectivenessChecks({ now: new Date('2030-07-05T12:00:00Z') })).opened.map((o) => o.id)).not.toContain(capaId);
     const sweep = await openDueEffectivenessChecks({ now: new Date('2030-07-12T12:00:00Z') });
     expect(sweep.opened.map((o) => o.id)).toContain(capaId);

@@ -4,7 +4,8 @@ import { closeDb, connect, db } from '@/db/client';
 import { auditEntries, signatures, users } from '@/db/schema';
 import { quarantineRing, retireRing, returnRingToService } from '@/lib/equipment/commands';
 import { getRingDetail } from '@/lib/equipment/queries';
-import { ringSignedContent } from '@/lib/equipment/ring-kind';
+import { type RingRow, ringKind } from '@/lib/equipment/ring-kind';
+import { signedContentOf } from '@/lib/records/write-path';
 import { ValidationError } from '@/lib/errors';
 import { listSignatures, signatureContentHash, signWithPassword } from '@/lib/signatures';
 import { getRing, makeRing, makeUser, testPassword } from '../support/fixtures';
@@ -25,6 +26,9 @@ afterAll(async () => {
   await admin?.conn.end();
   await closeDb();
 });
+
+/** What the ring kind says a "verified" signature covers (it does not depend on who quarantined the ring). */
+const ringSignedContent = (row: RingRow) => signedContentOf(ringKind, 'verified', row, { quarantinedBy: null })!;
 
 const failedSignins = async (userId: number) =>
   (await db.select({ n: users.failedSignins }).from(users).where(eq(users.id, userId)))[0]!.n;
@@ -121,7 +125,7 @@ describe('electronic signatures', () => {
       meaning: 'reviewed',
     });
     expect(sig).toMatchObject({ meaning: 'reviewed', meaningLabel: 'Reviewed', matches: true, intact: true });
-    const [listed] = await listSignatures(db, 'filling_ring', ring.id, { ...content, condition: 'worn' });
+    const [listed] = await listSignatures(db, 'filling_ring', ring.id, () => ringSignedContent({ ...ring, condition: 'worn' }));
     expect(listed).toMatchObject({ id: sig.id, matches: false });
   });
 
@@ -136,7 +140,7 @@ describe('electronic signatures', () => {
       meaning: 'reviewed',
     });
     await admin.db.update(signatures).set({ printedName: 'Somebody Else' }).where(eq(signatures.id, sig.id));
-    const [listed] = await listSignatures(db, 'filling_ring', ring.id, ringSignedContent(ring));
+    const [listed] = await listSignatures(db, 'filling_ring', ring.id, () => ringSignedContent(ring));
     expect(listed).toMatchObject({ printedName: 'Somebody Else', matches: true, intact: false });
   });
 });

@@ -37,6 +37,8 @@ const signature = (id: number, userId: number, signedAt: string): SignatureDto =
   signedAt,
   recordVersion: 3,
   matches: true,
+  changedParts: [],
+  supersededBy: null,
   intact: true,
 });
 

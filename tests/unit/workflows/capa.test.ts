@@ -140,13 +140,13 @@ describe('CAPA machine', () => {
 describe('who may act on this CAPA, and when', () => {
   const approver = { id: ACTOR, role: 'qa_approver' } as const;
 
-  it('refuses plan approval by the approver who owns the CAPA (segregation of duties, common practice)', () => {
-    expect(send('proposed', ctx({ ownerId: ACTOR }), 'approve_plan', approver)).toEqual({
+  it('lets a QA approver approve a complete plan (who may not, because of what they did, is tests/unit/records/segregation.test.ts)', () => {
+    expect(send('proposed', ctx(), 'approve_plan', approver)).toMatchObject({ ok: true, nextState: 'plan_approved' });
+    expect(send('proposed', ctx(), 'approve_plan', { id: ACTOR, role: 'qa_investigator' })).toEqual({
       ok: false,
       problem: 'refused',
-      guard: 'completePlanByIndependentApprover',
+      guard: 'completePlanByApprover',
     });
-    expect(send('proposed', ctx(), 'approve_plan', approver)).toMatchObject({ ok: true, nextState: 'plan_approved' });
   });
 
   it('refuses to approve a plan without actions or without effectiveness criteria (21 CFR 820.100(a)(3), (a)(4))', () => {
@@ -179,12 +179,12 @@ describe('who may act on this CAPA, and when', () => {
     expect(send('implementation', ctx(), 'open_effectiveness_check', { id: ACTOR, role: 'operator' })).toMatchObject({ ok: false });
   });
 
-  it('refuses the owner signing their own CAPA effective or not effective (segregation of duties, common practice)', () => {
+  it('leaves the effectiveness decision to QA approvers', () => {
     for (const event of ['record_effective', 'record_not_effective'] as const) {
-      expect(send('effectiveness_check', ctx({ ownerId: ACTOR }), event, approver)).toEqual({
+      expect(send('effectiveness_check', ctx(), event, { id: ACTOR, role: 'qa_investigator' })).toEqual({
         ok: false,
         problem: 'refused',
-        guard: 'byIndependentApprover',
+        guard: 'byApprover',
       });
     }
   });

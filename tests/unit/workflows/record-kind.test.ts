@@ -21,7 +21,7 @@ const base = {
   table: fillingRings,
   readPermission: 'equipment.read' as const,
   context: () => ({}),
-  signedContent: () => ({}),
+  signedContent: { verified: () => ({}), approved: () => ({}) },
   auditFields: [] as const,
   toDto: (row: typeof fillingRings.$inferSelect) => row,
 };
@@ -62,6 +62,8 @@ describe('defining a record kind', () => {
         eventLabels: {} as { retire: string },
         stateLabels: { in_service: 'In service' },
         guardRefusals: {},
+        independence: { retire: ['stranger'] } as never,
+        sections: { notes: { label: 'Notes', permission: 'ring.retire', states: ['lost'] } } as never,
       });
     expect(attempt).toThrow(/event "retire" has no permission/);
     expect(attempt).toThrow(/event "retire" has no label/);
@@ -69,6 +71,23 @@ describe('defining a record kind', () => {
     expect(attempt).toThrow(/unknown signature meaning: okayed/);
     expect(attempt).toThrow(/guard "byNobody" has no refusal message/);
     expect(attempt).toThrow(/action "ringTheBell" has no effect/);
+    expect(attempt).toThrow(/independence of "retire" names unknown participant "stranger"/);
+    expect(attempt).toThrow(/section "notes" names unknown state "lost"/);
+  });
+
+  it('refuses a signature meaning the kind says nothing about (21 CFR 11.70: a signature covers declared content)', () => {
+    const attempt = () =>
+      defineRecordKind({
+        ...base,
+        signedContent: { verified: () => ({}) },
+        machine: fillingRingMachine,
+        eventPermissions: { quarantine: 'ring.quarantine', return_to_service: 'ring.return_to_service', retire: 'ring.retire' },
+        eventLabels: ringEventLabels,
+        stateLabels: ringStateLabels,
+        guardRefusals: ringGuardRefusals,
+        effects: { notifyQaOfQuarantine: {} },
+      });
+    expect(attempt).toThrow(/quarantined --retire: no signed content for meaning "approved"/);
   });
 });
 

@@ -4,7 +4,7 @@ import { revalidatePath } from 'next/cache';
 import { redirect } from 'next/navigation';
 import { z } from 'zod';
 import type { CapaFormState } from '@/components/capa/form-state';
-import { addAction, completeAction, requestPlanApproval, updateAction, updatePlan } from '@/lib/capa/commands';
+import { addAction, completeAction, reassignOwner, requestPlanApproval, updateAction, updatePlan } from '@/lib/capa/commands';
 import { sendCapaEvent } from '@/lib/capa/detail';
 import { type ActionResult, defineAction } from '@/lib/define-action';
 
@@ -24,6 +24,7 @@ const runAction = defineAction(withId, (input: Loose, user) =>
 );
 const runComplete = defineAction(withId, (input, user) => completeAction(user, input as Parameters<typeof completeAction>[1]));
 const runRequest = defineAction(withId, (input, user) => requestPlanApproval(user, input as Parameters<typeof requestPlanApproval>[1]));
+const runReassign = defineAction(withId, (input, user) => reassignOwner(user, input as Parameters<typeof reassignOwner>[1]));
 
 function failed(result: Extract<ActionResult<unknown>, { ok: false }>): CapaFormState {
   return { failed: true, message: result.message, fieldErrors: result.fieldErrors, values: result.values ?? {} };
@@ -63,4 +64,10 @@ export async function askForPlanApproval(_previous: CapaFormState, formData: For
   const result = await runRequest(formData);
   if (!result.ok) return failed(result);
   done(result.data.record.id, 'approval_requested');
+}
+
+export async function saveOwner(_previous: CapaFormState, formData: FormData): Promise<CapaFormState> {
+  const result = await runReassign(formData);
+  if (!result.ok) return failed(result);
+  done(result.data.record.id, 'owner');
 }

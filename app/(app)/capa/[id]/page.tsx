@@ -5,6 +5,8 @@ import { ActionForm, CompleteActionForm, RequestApprovalForm } from '@/component
 import { CapaTimeline } from '@/components/capa/capa-timeline';
 import { CapaEventForm, type CapaEventFormProps } from '@/components/capa/event-form';
 import { PlanForm } from '@/components/capa/plan-form';
+import { ReassignOwnerForm } from '@/components/capa/reassign-form';
+import { BlockedEventList } from '@/components/records/blocked-events';
 import { CapaStatusBadge } from '@/components/capa/status-badge';
 import { EvidenceDropzone } from '@/components/evidence/evidence-dropzone';
 import { EvidenceList } from '@/components/evidence/evidence-list';
@@ -19,15 +21,16 @@ import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
 import { requirePageUser } from '@/lib/auth/session';
 import { type CapaActionDto, type CapaDetailDto, type CapaPlanOptionsDto, getCapaDetail, getCapaPlanOptions } from '@/lib/capa/detail';
 import { evidenceAsHtml } from '@/lib/capa/evidence-text';
-import { capaActionCategoryLabels, capaActionKindLabels, capaSourceLabels } from '@/lib/capa/labels';
+import { capaActionCategoryLabels, capaActionKindLabels, capaEventLabels, capaSourceLabels } from '@/lib/capa/labels';
 import { NotFoundError } from '@/lib/errors';
 import { type CapaEventType, capaEvents } from '@/workflows/capa';
-import { askForPlanApproval, saveAction, saveCompletion, savePlan, submitCapaEvent } from './actions';
+import { askForPlanApproval, saveAction, saveCompletion, saveOwner, savePlan, submitCapaEvent } from './actions';
 
 export const metadata: Metadata = { title: 'CAPA' };
 
-const doneMessages: Record<CapaEventType | 'plan' | 'action_added' | 'action_updated' | 'action_completed' | 'approval_requested', string> = {
+const doneMessages: Record<CapaEventType | 'plan' | 'owner' | 'action_added' | 'action_updated' | 'action_completed' | 'approval_requested', string> = {
   plan: 'The plan is saved.',
+  owner: 'The CAPA has a new owner, who is told by e-mail.',
   action_added: 'The action is added. Its owner is told by e-mail.',
   action_updated: 'The action is changed.',
   action_completed: 'The action is recorded as completed, with its evidence.',
@@ -181,7 +184,7 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
     throw err;
   });
   const [options, evidenceFiles, attachRefusal] = await Promise.all([
-    detail.canPlan ? getCapaPlanOptions() : null,
+    detail.canPlan || detail.sections.owner.editable ? getCapaPlanOptions() : null,
     listAttachments('capa', id, user),
     getAttachRefusal('capa', id, user),
   ]);
@@ -276,7 +279,15 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
               <p className="mt-1 text-ink-600">Not written yet. The plan cannot be approved without them.</p>
             )}
             {criterion ? <RecurrenceLine detail={detail} /> : null}
-            {options ? (
+            {options && detail.sections.owner.editable ? (
+              <details className="mt-4 border-t border-ink-200 pt-3">
+                <summary className="inline-flex min-h-11 cursor-pointer items-center font-semibold underline underline-offset-4">Reassign the owner</summary>
+                <div className="mt-3">
+                  <ReassignOwnerForm key={`owner-${c.version}`} action={saveOwner} capaId={c.id} version={c.version} currentOwnerId={c.ownerId} owners={options.owners} />
+                </div>
+              </details>
+            ) : null}
+            {options && detail.canPlan ? (
               <details className="mt-4 border-t border-ink-200 pt-3" open={!c.effectivenessCriteria}>
                 <summary className="inline-flex min-h-11 cursor-pointer items-center font-semibold underline underline-offset-4">Edit the plan</summary>
                 <div className="mt-3">
@@ -291,7 +302,6 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
                       problemStatement: c.problemStatement,
                       rootCause: c.rootCause ?? '',
                       effectivenessCriteria: c.effectivenessCriteria ?? '',
-                      ownerId: String(c.ownerId),
                       dueAt: dateOnly(c.dueAt) ?? '',
                       criterionDefectId: criterion?.defectId ? String(criterion.defectId) : '',
                       criterionMachineId: criterion?.machineId ? String(criterion.machineId) : '',
@@ -321,7 +331,7 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
                 ))}
               </ul>
             ) : null}
-            {options ? (
+            {options && detail.sections.actions.editable ? (
               <details className="mt-4 border-t border-ink-200 pt-3" open={current.length === 0}>
                 <summary className="inline-flex min-h-11 cursor-pointer items-center font-semibold underline underline-offset-4">Add an action</summary>
                 <div className="mt-3">
@@ -337,7 +347,7 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
                 </div>
               </details>
             ) : null}
-            {options && current.length > 0 && c.effectivenessCriteria ? (
+            {detail.sections.approval_request.editable && current.length > 0 && c.effectivenessCriteria ? (
               <div className="mt-4 border-t border-ink-200 pt-3">
                 <RequestApprovalForm action={askForPlanApproval} capaId={c.id} version={c.version} />
               </div>
@@ -377,12 +387,15 @@ export default async function CapaDetailPage({ params, searchParams }: PageProps
           <h2 id="do-heading" className="text-lg font-semibold">
             What you can do
           </h2>
+          <BlockedEventList events={detail.blockedEvents} labels={capaEventLabels} />
           {detail.allowedEvents.length === 0 ? (
-            <p className="text-ink-700">
-              {c.status === 'closed_effective' || c.status === 'cancelled'
-                ? 'This CAPA is closed. Nothing more can be done to it.'
-                : 'Your role has no lifecycle step to take on this CAPA at this stage.'}
-            </p>
+            detail.blockedEvents.length === 0 ? (
+              <p className="text-ink-700">
+                {c.status === 'closed_effective' || c.status === 'cancelled'
+                  ? 'This CAPA is closed. Nothing more can be done to it.'
+                  : 'Your role has no lifecycle step to take on this CAPA at this stage.'}
+              </p>
+            ) : null
           ) : (
             <div className="grid grid-cols-1 items-start gap-4 lg:grid-cols-2">
               {[...detail.allowedEvents]

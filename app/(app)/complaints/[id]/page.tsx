@@ -14,6 +14,7 @@ import { RichTextView } from '@/components/rich-text/rich-text-view';
 import { buttonClasses } from '@/components/ui/button';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { BlockedEventList } from '@/components/records/blocked-events';
 import { eventFormProps, type EventFormText } from '@/components/records/event-form-text';
 import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
@@ -24,6 +25,7 @@ import { todayIn } from '@/lib/clocks/dates';
 import { type ComplaintDetailDto, getComplaintDetail, listCapaOwnerOptions } from '@/lib/complaints/detail';
 import {
   complainantKindLabels,
+  complaintEventLabels,
   complaintStateLabels,
   intakeChannelLabels,
   reportKindLabels,
@@ -468,12 +470,15 @@ export default async function ComplaintDetailPage({ params, searchParams }: Page
           <h2 id="do-heading" className="text-lg font-semibold">
             What you can do
           </h2>
+          <BlockedEventList events={detail.blockedEvents} labels={complaintEventLabels} />
           {detail.allowedEvents.length === 0 ? (
-            <p className="text-ink-700">
-              {c.status === 'closed'
-                ? 'This complaint is closed. QA can reopen it if new information arrives.'
-                : `Your role has no lifecycle step to take on this complaint while it is ${complaintStateLabels[c.status].toLowerCase()}.`}
-            </p>
+            detail.blockedEvents.length === 0 ? (
+              <p className="text-ink-700">
+                {c.status === 'closed'
+                  ? 'This complaint is closed. QA can reopen it if new information arrives.'
+                  : `Your role has no lifecycle step to take on this complaint while it is ${complaintStateLabels[c.status].toLowerCase()}.`}
+              </p>
+            ) : null
           ) : (
             <div className="grid grid-cols-1 items-start gap-4 lg:grid-cols-2">
               {[...detail.allowedEvents]

@@ -17,6 +17,7 @@ import { ClassificationBadge } from '@/components/risk/classification-badge';
 import { BatchStatusBadge } from '@/components/ui/batch-status';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
+import { BlockedEventList } from '@/components/records/blocked-events';
 import { eventFormProps, type EventFormText } from '@/components/records/event-form-text';
 import { DetailRow } from '@/components/ui/detail-row';
 import { PageHeader } from '@/components/ui/page-header';
@@ -25,12 +26,11 @@ import { todayIn } from '@/lib/clocks/dates';
 import { classifications, dueDateFor, dueDaysOf } from '@/lib/clocks/due-dates';
 import { getAttachRefusal, listAttachments } from '@/lib/attachments/queries';
 import { type DeviationDetailDto, getDeviationDetail, listActiveInvestigators } from '@/lib/deviations/detail';
-import { dispositionModeFor, listHeldBatchSizes, listHoldSuggestions } from '@/lib/deviations/batches';
+import { listHeldBatchSizes, listHoldSuggestions } from '@/lib/deviations/batches';
 import { classificationWithoutDefect } from '@/lib/deviations/commands';
 import { listComments, listMentionOptions } from '@/lib/comments/queries';
 import { getInvestigationView } from '@/lib/deviations/investigation';
-import { classificationLabels, dispositionLabels } from '@/lib/deviations/labels';
-import { can } from '@/lib/auth/permissions';
+import { classificationLabels, deviationEventLabels, dispositionLabels } from '@/lib/deviations/labels';
 import { NotFoundError } from '@/lib/errors';
 import { quarantineCaution } from '@/lib/risk/classify';
 import { getCurrentRiskScales } from '@/lib/risk-scales/queries';
@@ -57,6 +57,7 @@ const doneMessages: Record<DeviationEventType | 'triage' | 'investigation' | 'in
   approve: 'Approved and closed. Your signature is recorded and each held batch took its disposition.',
   close_minor: 'Closed as minor. Your signature is recorded.',
   cancel: 'The deviation is cancelled. Your signature is recorded.',
+  discard: 'The draft is discarded. It was never reported and only you can see it.',
 };
 
 type Allowed = DeviationDetailDto['allowedEvents'][number];
@@ -67,6 +68,13 @@ const formTexts: Record<DeviationEventType, EventFormText> = {
     description: 'Gives it its DEV number, puts the chosen batches on hold and sends it to QA.',
     submitLabel: 'Submit',
     pendingLabel: 'Submitting…',
+  },
+  discard: {
+    heading: 'Discard the draft',
+    description: 'Throws this draft away. It was never reported, so it gets no number and stays visible to you alone.',
+    submitLabel: 'Discard the draft',
+    pendingLabel: 'Discarding…',
+    danger: true,
   },
   start_triage: {
     heading: 'Start triage',
@@ -135,6 +143,8 @@ function noActionsText(status: DeviationDetailDto['deviation']['status']): strin
       return 'This deviation is closed. Nothing more can be done to it.';
     case 'cancelled':
       return 'This deviation is cancelled. Nothing more can be done to it.';
+    case 'discarded':
+      return 'You discarded this draft. It was never reported, and only you can see it.';
     default:
       return 'Your role has nothing to do on this deviation at this stage.';
   }
@@ -158,16 +168,13 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
   const doneMessage = typeof done === 'string' && done in doneMessages ? doneMessages[done as keyof typeof doneMessages] : null;
   const critical = d.classification === 'critical' || (d.classification === null && defect?.defaultClassification === 'critical');
 
-  // The triage form is for QA while the deviation is in triage: exactly who may start or run triage.
-  const canTriage = d.status === 'triage' && detail.allowedEvents.some((e) => e.type === 'assign_investigation' || e.type === 'close_minor')
-    ? true
-    : d.status === 'triage' && user.role === 'qa_investigator';
-  const triage = canTriage ? await triageProps(detail) : null;
-  // Held batches: who may record a disposition now, and QA's suggestions for extending the holds.
-  const dispositionMode = dispositionModeFor(user, d);
+  // Every form below is offered exactly when the deviation's rules (lib/deviations/kind.ts) let this person use it.
+  const { sections } = detail;
+  const triage = sections.triage.editable ? await triageProps(detail) : null;
+  const dispositionMode = sections.recommendation.editable ? 'recommend' : sections.disposition.editable ? 'decide' : null;
   const [batchSizes, holds] = await Promise.all([
     dispositionMode ? listHeldBatchSizes(id) : Promise.resolve({} as Record<number, number>),
-    (d.status === 'reported' || d.status === 'triage') && can(user, 'deviation.triage') ? listHoldSuggestions(id, user) : Promise.resolve(null),
+    sections.holds.editable ? listHoldSuggestions(id, user) : Promise.resolve(null),
   ]);
   const title = d.number ?? 'Draft';
   const [evidence, attachRefusal, comments, mentionPeople] = await Promise.all([
@@ -393,8 +400,9 @@ export default async function DeviationPage({ params, searchParams }: PageProps<
               suggestions={holds.suggestions}
             />
           ) : null}
+          {detail.blockedEvents.length > 0 ? <BlockedEventList events={detail.blockedEvents} labels={deviationEventLabels} /> : null}
           {detail.allowedEvents.length === 0 && !triage ? (
-            <p className="text-ink-700">{noActionsText(d.status)}</p>
+            detail.blockedEvents.length === 0 ? <p className="text-ink-700">{noActionsText(d.status)}</p> : null
           ) : (
             <div className="grid grid-cols-1 items-start gap-4 lg:grid-cols-2">
               {detail.allowedEvents.map((event) => (

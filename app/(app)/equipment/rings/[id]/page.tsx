@@ -6,12 +6,13 @@ import { RingConditionBadge, RingStatusBadge } from '@/components/equipment/ring
 import { RingEventForm, type RingEventFormProps } from '@/components/equipment/ring-event-form';
 import { RingHistory } from '@/components/equipment/ring-history';
 import { SignatureList } from '@/components/equipment/signature-list';
+import { BlockedEventList } from '@/components/records/blocked-events';
 import { formatUtc } from '@/components/ui/format';
 import { Notice } from '@/components/ui/notice';
 import { PageHeader } from '@/components/ui/page-header';
 import { requirePageUser } from '@/lib/auth/session';
 import { NotFoundError } from '@/lib/errors';
-import { ringConditionLabels, ringConditionOrder, serviceableConditions } from '@/lib/equipment/labels';
+import { ringConditionLabels, ringConditionOrder, ringEventLabels, serviceableConditions } from '@/lib/equipment/labels';
 import { type RingDetailDto, getRingDetail } from '@/lib/equipment/queries';
 import { signatureMeaningLabels, signatureMeaningStatements } from '@/lib/signatures/meanings';
 import type { RingEventType } from '@/workflows/filling-ring';
@@ -165,8 +166,9 @@ export default async function RingPage({ params, searchParams }: PageProps<'/equ
             <h2 id="actions-heading" className="text-lg font-semibold">
               What you can do
             </h2>
+            <BlockedEventList events={detail.blockedEvents} labels={ringEventLabels} />
             {detail.allowedEvents.length === 0 ? (
-              <p className="text-ink-700">{noActionsText(detail)}</p>
+              detail.blockedEvents.length === 0 ? <p className="text-ink-700">{noActionsText(detail)}</p> : null
             ) : (
               detail.allowedEvents.map((event) => (
                 <RingEventForm key={`${event.type}-${ring.version}`} {...formFor(detail, event, user.name)} />
