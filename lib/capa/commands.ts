@@ -6,7 +6,7 @@ import { type FieldChange, diffFields } from '../audit';
 import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
 import { activeUsers } from '../mail/record-notice';
 import type { RecordActor } from '../records/kind';
-import { type WriteOutcome, createRecord, editRecord, insertRecord, transitionRecord } from '../records/write-path';
+import { type SignOptions, type WriteOutcome, createRecord, editRecord, insertRecord, transitionRecord } from '../records/write-path';
 import { parseInput } from '../validation/parse';
 import { type CapaActionRow, type CapaRow, capaKind, capaNotice, eligibleApprovers, planApprovalMail } from './kind';
 import { cleanEvidence } from './evidence-text';
@@ -385,7 +385,7 @@ export async function completeAction(actor: RecordActor, raw: CompleteActionInpu
 }
 
 /** The QA approver signs the plan ("approved"); the plan is then fixed for this round. */
-export async function approvePlan(actor: RecordActor, raw: SignedInput): Promise<CapaOutcome> {
+export async function approvePlan(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<CapaOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(capaKind, {
     id: input.id,
@@ -393,6 +393,7 @@ export async function approvePlan(actor: RecordActor, raw: SignedInput): Promise
     event: 'approve_plan',
     actor,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ planApprovedAt: now }),
   });
 }
@@ -420,7 +421,7 @@ export async function openEffectivenessCheck(actor: RecordActor, raw: CapaVersio
  * its one-time token here (lib/capa/review-links.ts), so a used link never signs twice and a refused
  * signature (wrong password, conflict) leaves the link usable.
  */
-export interface SigningHooks {
+export interface SigningHooks extends SignOptions {
   inTransaction?: (tx: Tx) => Promise<void>;
 }
 
@@ -432,6 +433,7 @@ export async function recordEffective(actor: RecordActor, raw: SignedInput, hook
     event: 'record_effective',
     actor,
     password: input.password,
+    signer: hooks.signer,
     changes: async (_row, { tx, now }) => {
       await hooks.inTransaction?.(tx);
       return { effectivenessResult: 'effective', effectivenessNote: null, closedAt: now };
@@ -452,6 +454,7 @@ export async function recordNotEffective(actor: RecordActor, raw: SignedReasonIn
     actor,
     reason: input.reason,
     password: input.password,
+    signer: hooks.signer,
     changes: async (row, { tx }) => {
       await hooks.inTransaction?.(tx);
       return {
@@ -469,7 +472,7 @@ export async function recordNotEffective(actor: RecordActor, raw: SignedReasonIn
   });
 }
 
-export async function cancelCapa(actor: RecordActor, raw: SignedReasonInput): Promise<CapaOutcome> {
+export async function cancelCapa(actor: RecordActor, raw: SignedReasonInput, options: SignOptions = {}): Promise<CapaOutcome> {
   const input = parseInput(signedReasonSchema, raw);
   return transitionRecord(capaKind, {
     id: input.id,
@@ -478,6 +481,7 @@ export async function cancelCapa(actor: RecordActor, raw: SignedReasonInput): Pr
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ cancelReason: input.reason, closedAt: now }),
   });
 }

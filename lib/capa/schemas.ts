@@ -17,7 +17,8 @@ const reason = z
   .trim()
   .min(3, 'Give the reason for this change (a few words at least).')
   .max(2000, 'Keep the reason under 2,000 characters.');
-const password = z.string({ error: 'Enter your password to sign.' }).min(1, 'Enter your password to sign.').max(256);
+/** Checked by the write path, which asks for it exactly when the transition is signed (or takes a verified signer). */
+const password = z.string().max(256).optional();
 const requiredText = (min: number, max: number, missing: string, tooLong: string) =>
   z.string({ error: missing }).trim().min(min, missing).max(max, tooLong);
 const optionalText = (max: number, message: string) =>

@@ -3,13 +3,14 @@ import { and, eq } from 'drizzle-orm';
 import { batches, capas, capsuleDefects, deviations, products, recordLinks, users } from '../../db/schema';
 import { assertCan } from '../auth/permissions';
 import { insertCapa } from '../capa/commands';
+import { now as clockNow } from '../clock';
 import { addBusinessDays } from '../clocks/business-days';
 import { todayIn } from '../clocks/dates';
 import { getEnv } from '../env';
 import { ValidationError } from '../errors';
 import { enqueueMail } from '../mail/outbox';
 import type { RecordActor } from '../records/kind';
-import { type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
+import { type SignOptions, type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
 import { cleanRichTextForSaving, isRichTextEmpty, richTextToPlainText } from '../rich-text/sanitize';
 import { getBusinessCalendar, getSiteTimeZone } from '../site-calendar/queries';
 import { parseInput } from '../validation/parse';
@@ -68,7 +69,7 @@ function refuse(fieldErrors: Record<string, string[]>): never {
  * flagged), what they found, whether someone was harmed, and whether samples are coming back. The
  * received date may not be in the future at the site, nor before the lot was made.
  */
-export async function createComplaint(actor: RecordActor, raw: IntakeInput, now: Date = new Date()): Promise<ComplaintOutcome> {
+export async function createComplaint(actor: RecordActor, raw: IntakeInput, now: Date = clockNow()): Promise<ComplaintOutcome> {
   const input = parseInput(intakeSchema, raw);
   return createRecord(complaintKind, actor, 'complaint.intake', async (tx) => {
     const today = todayIn(await getSiteTimeZone(tx), now);
@@ -198,7 +199,7 @@ export async function saveAssessment(actor: RecordActor, raw: AssessmentInput): 
 }
 
 /** The assessing QA investigator signs the reportability decision ("reportability decided"). */
-export async function completeAssessment(actor: RecordActor, raw: SignedInput): Promise<ComplaintOutcome> {
+export async function completeAssessment(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<ComplaintOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(complaintKind, {
     id: input.id,
@@ -206,12 +207,13 @@ export async function completeAssessment(actor: RecordActor, raw: SignedInput): 
     event: 'complete_assessment',
     actor,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ reportabilityDecidedAt: now, reportabilityDecidedBy: actor.id, investigationSkipReason: null }),
   });
 }
 
 /** No quality defect is possible: straight to the answer, with the justification signed (21 CFR 211.198(b)(2)). */
-export async function skipInvestigation(actor: RecordActor, raw: SignedReasonInput): Promise<ComplaintOutcome> {
+export async function skipInvestigation(actor: RecordActor, raw: SignedReasonInput, options: SignOptions = {}): Promise<ComplaintOutcome> {
   const input = parseInput(signedReasonSchema, raw);
   return transitionRecord(complaintKind, {
     id: input.id,
@@ -220,6 +222,7 @@ export async function skipInvestigation(actor: RecordActor, raw: SignedReasonInp
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ reportabilityDecidedAt: now, reportabilityDecidedBy: actor.id, investigationSkipReason: input.reason }),
   });
 }
@@ -313,7 +316,7 @@ export async function raiseCapaFromComplaint(actor: RecordActor, raw: RaiseCapaI
 }
 
 /** The investigator signs the investigation ("investigation complete"). */
-export async function completeInvestigation(actor: RecordActor, raw: SignedInput): Promise<ComplaintOutcome> {
+export async function completeInvestigation(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<ComplaintOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(complaintKind, {
     id: input.id,
@@ -321,6 +324,7 @@ export async function completeInvestigation(actor: RecordActor, raw: SignedInput
     event: 'complete_investigation',
     actor,
     password: input.password,
+    signer: options.signer,
   });
 }
 
@@ -393,7 +397,7 @@ export async function sendResponse(actor: RecordActor, raw: SendResponseInput): 
 }
 
 /** A QA approver closes the answered complaint ("approved"). */
-export async function closeComplaint(actor: RecordActor, raw: SignedInput): Promise<ComplaintOutcome> {
+export async function closeComplaint(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<ComplaintOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(complaintKind, {
     id: input.id,
@@ -401,6 +405,7 @@ export async function closeComplaint(actor: RecordActor, raw: SignedInput): Prom
     event: 'close',
     actor,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ closedAt: now }),
   });
 }
@@ -432,7 +437,7 @@ export async function reopenComplaint(actor: RecordActor, raw: ReopenInput): Pro
 }
 
 /** The date the report went to the regulator; stops the countdown. */
-export async function recordReportSubmitted(actor: RecordActor, raw: ReportSubmittedInput, now: Date = new Date()): Promise<ComplaintOutcome> {
+export async function recordReportSubmitted(actor: RecordActor, raw: ReportSubmittedInput, now: Date = clockNow()): Promise<ComplaintOutcome> {
   const input = parseInput(reportSubmittedSchema, raw);
   return editRecord(complaintKind, {
     id: input.id,

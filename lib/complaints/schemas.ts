@@ -18,7 +18,8 @@ const reason = z
   .trim()
   .min(3, 'Give the reason (a few words at least).')
   .max(2000, 'Keep the reason under 2,000 characters.');
-const password = z.string({ error: 'Enter your password to sign.' }).min(1, 'Enter your password to sign.').max(256);
+/** Checked by the write path, which asks for it exactly when the transition is signed (or takes a verified signer). */
+const password = z.string().max(256).optional();
 const checkbox = z.preprocess((v) => v === true || v === 'true' || v === 'on' || v === '1', z.boolean());
 /** A yes/no radio: required, so an unanswered question is not read as "no". */
 const yesNo = (message: string) =>

@@ -6,7 +6,7 @@ import { diffFields } from '../audit';
 import { ValidationError } from '../errors';
 import type { RecordActor } from '../records/kind';
 import { allocateNumber } from '../records/numbers';
-import { type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
+import { type SignOptions, type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
 import { type Classification, classify } from '../risk/classify';
 import { isRichTextEmpty } from '../rich-text/sanitize';
 import { parseInput } from '../validation/parse';
@@ -221,7 +221,7 @@ export async function assignInvestigation(actor: RecordActor, raw: DeviationVers
 }
 
 /** The investigator signs as author of the investigation ("investigation complete"). */
-export async function submitForApproval(actor: RecordActor, raw: SignedInput): Promise<DeviationOutcome> {
+export async function submitForApproval(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<DeviationOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(deviationKind, {
     id: input.id,
@@ -229,6 +229,7 @@ export async function submitForApproval(actor: RecordActor, raw: SignedInput): P
     event: 'submit_for_approval',
     actor,
     password: input.password,
+    signer: options.signer,
     changes: (row) => {
       // 21 CFR 211.192: the written record of the investigation includes its conclusions and follow-up;
       // the signature "investigation complete" is refused while any of them is missing.
@@ -256,7 +257,7 @@ export async function returnForRework(actor: RecordActor, raw: ReasonInput): Pro
 }
 
 /** The approver signs ("approved"); each held batch takes its disposition. */
-export async function approveDeviation(actor: RecordActor, raw: SignedInput): Promise<DeviationOutcome> {
+export async function approveDeviation(actor: RecordActor, raw: SignedInput, options: SignOptions = {}): Promise<DeviationOutcome> {
   const input = parseInput(signedSchema, raw);
   return transitionRecord(deviationKind, {
     id: input.id,
@@ -264,13 +265,14 @@ export async function approveDeviation(actor: RecordActor, raw: SignedInput): Pr
     event: 'approve',
     actor,
     password: input.password,
+    signer: options.signer,
     // The kind's guard refuses it while a held batch has no disposition (21 CFR 211.192).
     changes: (_row, { now }) => ({ closedAt: now }),
   });
 }
 
 /** A minor deviation closed at triage, with a written justification and the approver's signature. */
-export async function closeMinor(actor: RecordActor, raw: SignedReasonInput): Promise<DeviationOutcome> {
+export async function closeMinor(actor: RecordActor, raw: SignedReasonInput, options: SignOptions = {}): Promise<DeviationOutcome> {
   const input = parseInput(signedReasonSchema, raw);
   return transitionRecord(deviationKind, {
     id: input.id,
@@ -279,6 +281,7 @@ export async function closeMinor(actor: RecordActor, raw: SignedReasonInput): Pr
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ closedAt: now, closureJustification: input.reason }),
   });
 }
@@ -287,7 +290,7 @@ export async function closeMinor(actor: RecordActor, raw: SignedReasonInput): Pr
  * Raised in error or twice. The holds this deviation placed are not lifted here: a batch leaves hold
  * only by a recorded disposition, never as a side effect of a cancellation.
  */
-export async function cancelDeviation(actor: RecordActor, raw: SignedReasonInput): Promise<DeviationOutcome> {
+export async function cancelDeviation(actor: RecordActor, raw: SignedReasonInput, options: SignOptions = {}): Promise<DeviationOutcome> {
   const input = parseInput(signedReasonSchema, raw);
   return transitionRecord(deviationKind, {
     id: input.id,
@@ -296,6 +299,7 @@ export async function cancelDeviation(actor: RecordActor, raw: SignedReasonInput
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ cancelReason: input.reason, closedAt: now }),
   });
 }

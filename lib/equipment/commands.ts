@@ -3,7 +3,7 @@ import { eq } from 'drizzle-orm';
 import { machines } from '../../db/schema';
 import { ValidationError } from '../errors';
 import { type RecordActor } from '../records/kind';
-import { type WriteOutcome, createRecord, transitionRecord } from '../records/write-path';
+import { type SignOptions, type WriteOutcome, createRecord, transitionRecord } from '../records/write-path';
 import {
   type QuarantineRingInput,
   type RegisterRingInput,
@@ -31,7 +31,7 @@ export function quarantineRing(actor: RecordActor, input: QuarantineRingInput): 
   });
 }
 
-export function returnRingToService(actor: RecordActor, input: ReturnRingToServiceInput): Promise<RingOutcome> {
+export function returnRingToService(actor: RecordActor, input: ReturnRingToServiceInput, options: SignOptions = {}): Promise<RingOutcome> {
   return transitionRecord(ringKind, {
     id: input.id,
     expectedVersion: input.version,
@@ -39,11 +39,12 @@ export function returnRingToService(actor: RecordActor, input: ReturnRingToServi
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: () => ({ statusReason: null, condition: input.condition }),
   });
 }
 
-export function retireRing(actor: RecordActor, input: RetireRingInput): Promise<RingOutcome> {
+export function retireRing(actor: RecordActor, input: RetireRingInput, options: SignOptions = {}): Promise<RingOutcome> {
   return transitionRecord(ringKind, {
     id: input.id,
     expectedVersion: input.version,
@@ -51,6 +52,7 @@ export function retireRing(actor: RecordActor, input: RetireRingInput): Promise<
     actor,
     reason: input.reason,
     password: input.password,
+    signer: options.signer,
     changes: (_row, { now }) => ({ statusReason: input.reason, retiredAt: now }),
   });
 }

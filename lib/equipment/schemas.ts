@@ -15,7 +15,8 @@ const reason = z
   .trim()
   .min(3, 'Give the reason for this change (a few words at least).')
   .max(500, 'Keep the reason under 500 characters; put details in a deviation.');
-const password = z.string({ error: 'Enter your password to sign.' }).min(1, 'Enter your password to sign.').max(256);
+/** Checked by the write path, which asks for it exactly when the transition is signed (or takes a verified signer). */
+const password = z.string().max(256).optional();
 const optionalCondition = z.preprocess(
   (v) => (v === '' ? undefined : v),
   z.enum(ringConditions, { error: 'Pick a condition from the list.' }).optional(),

@@ -133,6 +133,14 @@ async function runAfterCommit<K extends AnyRecordKind>(
   }
 }
 
+/**
+ * For signing commands: a proof verifySigner gave the actor moments ago, instead of their password
+ * (the demo seed signs many records and checks each demo password once).
+ */
+export interface SignOptions {
+  signer?: VerifiedSigner;
+}
+
 // ── Lifecycle events ─────────────────────────────────────────────────────────────────────────────
 
 export interface TransitionRequest<K extends AnyRecordKind> {

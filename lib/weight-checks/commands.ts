@@ -3,6 +3,7 @@ import { db, type Db, type DbOrTx } from '../../db/client';
 import { weightChecks } from '../../db/schema';
 import { diffFields, writeAudit } from '../audit';
 import { assertCan } from '../auth/permissions';
+import { now } from '../clock';
 import { NotFoundError, ValidationError } from '../errors';
 import type { RecordActor } from '../records/kind';
 import type { RecordWeightCheckInput } from '../validation/weight';
@@ -116,7 +117,7 @@ export async function recordWeightCheck(
       const message = `Batch ${batch.lotNumber} is ${batch.status}; in-process weight checks are recorded while a batch is in process or on hold.`;
       throw new ValidationError(message, { batchId: [message] });
     }
-    const { values, evaluation } = buildWeightCheckRow(batch, input, actor.id, new Date());
+    const { values, evaluation } = buildWeightCheckRow(batch, input, actor.id, now());
     const id = await insertWeightCheck(tx, actor, values);
     const check = await getWeightCheck(id, tx);
     return { check: check!, evaluation };
