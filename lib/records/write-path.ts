@@ -1,5 +1,5 @@
 import 'server-only';
-import { and, eq } from 'drizzle-orm';
+import { type InferSelectModel, type SQL, and, asc, eq } from 'drizzle-orm';
 import type { MySqlTable } from 'drizzle-orm/mysql-core';
 import { type AnyStateMachine, initialTransition } from 'xstate';
 import { db, type DbOrTx, type Tx } from '../../db/client';
@@ -18,6 +18,7 @@ import {
   type InsertOf,
   type RecordAbilities,
   type RecordActor,
+  type RecordTable,
   type RelatedOf,
   type RowOf,
   type SectionOf,
@@ -360,7 +361,14 @@ export async function writeConsequence<K extends AnyRecordKind>(
   tx: Tx,
   kind: K,
   id: number,
-  req: { actor: RecordActor; action: string; reason: string; changes: (row: RowOf<K>) => Partial<InsertOf<K>> | null },
+  req: {
+    actor: { id: number | null; name: string };
+    action: string;
+    reason: string | null;
+    changes: (row: RowOf<K>) => Partial<InsertOf<K>> | null;
+    /** False for bookkeeping no form edits (a sign-in's failure count): other people's open forms stay current. */
+    bumpsVersion?: boolean;
+  },
 ): Promise<boolean> {
   const before = await readRow(tx, kind, id, true);
   if (!before) return false;
@@ -369,7 +377,7 @@ export async function writeConsequence<K extends AnyRecordKind>(
   const table = kind.table;
   await tx
     .update(table as MySqlTable)
-    .set({ ...changes, version: Number(before.version) + 1 })
+    .set({ ...changes, ...(req.bumpsVersion === false ? {} : { version: Number(before.version) + 1 }) })
     .where(eq(table.id, id));
   const after = (await readRow(tx, kind, id, false))!;
   await writeAudit(tx, {
@@ -381,6 +389,20 @@ export async function writeConsequence<K extends AnyRecordKind>(
     reason: req.reason,
   });
   return true;
+}
+
+/**
+ * Locks other rows of a table a rule reads across records (every active administrator, before one
+ * is demoted), in id order so concurrent writers queue instead of deadlocking. Call it from an
+ * edit's `apply`, inside the write path's transaction, after the record's own lock.
+ */
+export async function lockRowsInOrder<T extends RecordTable>(tx: Tx, table: T, where: SQL | undefined): Promise<InferSelectModel<T>[]> {
+  return (await tx
+    .select()
+    .from(table as MySqlTable)
+    .where(where)
+    .orderBy(asc(table.id))
+    .for('update')) as InferSelectModel<T>[];
 }
 
 // ── New records ──────────────────────────────────────────────────────────────────────────────────
