@@ -148,10 +148,17 @@ const signedParts = {
     recurrenceCriterion: row.recurrenceCriterion,
     ownerId: row.ownerId,
   }),
+  // One part per round, so the approval of round 1 is not touched by the actions of round 2.
   actions: (facts: CapaFacts) =>
-    facts.actions.map((a) => ({ id: a.id, round: a.round, kind: a.kind, category: a.category, description: a.description, ownerId: a.ownerId, dueAt: a.dueAt })),
-  completion: (facts: CapaFacts) => facts.actions.map((a) => ({ id: a.id, completedAt: a.completedAt, completedBy: a.completedBy, evidence: a.evidence })),
+    byRound(facts, 'actions', (a) => ({ id: a.id, kind: a.kind, category: a.category, description: a.description, ownerId: a.ownerId, dueAt: a.dueAt })),
+  completion: (facts: CapaFacts) => byRound(facts, 'completion', (a) => ({ id: a.id, completedAt: a.completedAt, completedBy: a.completedBy, evidence: a.evidence })),
 };
+
+function byRound(facts: CapaFacts, part: string, view: (a: CapaActionRow) => Record<string, unknown>): Record<string, unknown> {
+  const out: Record<string, Record<string, unknown>[]> = {};
+  for (const a of facts.actions) (out[`${part}:round ${a.round}`] ??= []).push(view(a));
+  return out;
+}
 
 /** States in which the CAPA is still open. */
 const openStates = ['proposed', 'plan_approved', 'implementation', 'effectiveness_check'] as const satisfies readonly CapaState[];
@@ -273,17 +280,17 @@ export const capaKind = defineRecordKind({
     comments: { label: 'Commenting', permission: 'capa.read', states: 'any', bumpsVersion: false },
   },
   signedContent: {
-    approved: (row, facts) => ({ plan: signedParts.plan(row), actions: signedParts.actions(facts) }),
+    approved: (row, facts) => ({ plan: signedParts.plan(row), ...signedParts.actions(facts) }),
     effective: (row, facts) => ({
       plan: signedParts.plan(row),
-      actions: signedParts.actions(facts),
-      completion: signedParts.completion(facts),
+      ...signedParts.actions(facts),
+      ...signedParts.completion(facts),
       evidence: facts.evidence,
     }),
     not_effective: (row, facts) => ({
       plan: signedParts.plan(row),
-      actions: signedParts.actions(facts),
-      completion: signedParts.completion(facts),
+      ...signedParts.actions(facts),
+      ...signedParts.completion(facts),
       evidence: facts.evidence,
     }),
   },

@@ -4,6 +4,8 @@ import { db, type DbOrTx } from '../../db/client';
 import { capas, complaints, deviations, users } from '../../db/schema';
 import type { CapaState } from '../../workflows/states';
 import { type Actor, assertCan } from '../auth/permissions';
+import { visibleWhere } from '../records/kind';
+import { capaKind } from './kind';
 import type { CapaSource } from './labels';
 import type { CapaListQuery, CapaListSort } from './list-query';
 
@@ -56,8 +58,10 @@ function orderFor(sort: CapaListSort, dir: 'asc' | 'desc'): SQL[] {
   }
 }
 
-function whereFor(query: CapaListQuery, now: Date): SQL | undefined {
+function whereFor(query: CapaListQuery, viewer: Actor, now: Date): SQL | undefined {
   return and(
+    // Who sees which CAPA is the CAPA kind's rule (today every role that reads CAPAs sees them all).
+    visibleWhere(capaKind, viewer),
     query.status.length > 0 ? inArray(capas.status, query.status) : undefined,
     query.source.length > 0 ? inArray(capas.sourceType, query.source) : undefined,
     query.ownerId !== null ? eq(capas.ownerId, query.ownerId) : undefined,
@@ -65,11 +69,11 @@ function whereFor(query: CapaListQuery, now: Date): SQL | undefined {
   );
 }
 
-export function capaPageIdsQuery(query: CapaListQuery, database: DbOrTx = db, now: Date = new Date()) {
+export function capaPageIdsQuery(query: CapaListQuery, viewer: Actor, database: DbOrTx = db, now: Date = new Date()) {
   return database
     .select({ id: capas.id })
     .from(capas)
-    .where(whereFor(query, now))
+    .where(whereFor(query, viewer, now))
     .orderBy(...orderFor(query.sort, query.dir))
     .limit(query.pageSize)
     .offset((query.page - 1) * query.pageSize);
@@ -78,8 +82,8 @@ export function capaPageIdsQuery(query: CapaListQuery, database: DbOrTx = db, no
 /** One page of CAPAs; every role that reads CAPAs sees them all (capa.read is 'any'). */
 export async function listCapas(query: CapaListQuery, viewer: Actor, database: DbOrTx = db, now: Date = new Date()): Promise<CapaPage> {
   assertCan(viewer, 'capa.read');
-  const [totalRow] = await database.select({ n: count() }).from(capas).where(whereFor(query, now));
-  const pageIds = (await capaPageIdsQuery(query, database, now)).map((r) => r.id);
+  const [totalRow] = await database.select({ n: count() }).from(capas).where(whereFor(query, viewer, now));
+  const pageIds = (await capaPageIdsQuery(query, viewer, database, now)).map((r) => r.id);
   const rows =
     pageIds.length === 0
       ? []

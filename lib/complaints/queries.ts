@@ -3,11 +3,13 @@ import { type SQL, and, asc, count, desc, eq, inArray, or } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, complaints, products, users } from '../../db/schema';
 import type { ComplaintState } from '../../workflows/states';
-import { type Actor, assertCan, permissionTable } from '../auth/permissions';
+import { type Actor, assertCan } from '../auth/permissions';
+import { visibleWhere } from '../records/kind';
 import { isoDateOfInstant, todayIn } from '../clocks/dates';
 import type { RegulatoryClockKind } from '../clocks/regulatory';
 import { getSiteTimeZone } from '../site-calendar/queries';
 import { type ReportCountdown, reportCountdown } from './deadline';
+import { complaintKind } from './kind';
 import { isNonDefectCategory, nonDefectCategories, nonDefectCategoryLabels } from './labels';
 import type { ComplaintListQuery, ComplaintListSort } from './list-query';
 
@@ -71,16 +73,10 @@ function orderFor(sort: ComplaintListSort, dir: 'asc' | 'desc'): SQL[] {
   }
 }
 
-/** An operator reads only the complaints they entered (complaint.read is 'own' for them). */
-export function visibilityFor(viewer: Actor): SQL | undefined {
-  return permissionTable['complaint.read'][viewer.role] === 'own'
-    ? or(eq(complaints.createdBy, viewer.id), eq(complaints.ownerId, viewer.id))
-    : undefined;
-}
-
 function whereFor(query: ComplaintListQuery, viewer: Actor): SQL | undefined {
   return and(
-    visibilityFor(viewer),
+    // Who sees which complaint is the complaint kind's rule (an operator: the ones they took down).
+    visibleWhere(complaintKind, viewer),
     query.status.length > 0 ? inArray(complaints.status, query.status) : undefined,
     query.productId !== null ? eq(complaints.productId, query.productId) : undefined,
     query.category !== null ? eq(complaints.category, query.category) : undefined,

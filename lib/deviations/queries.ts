@@ -3,6 +3,8 @@ import { type SQL, and, asc, count, desc, eq, gte, inArray, lt, ne, notInArray, 
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, classifications, deviations, fillingRings, machines, products, users } from '../../db/schema';
 import { type Actor, assertCan } from '../auth/permissions';
+import { visibleWhere } from '../records/kind';
+import { deviationKind } from './kind';
 import type { DeviationState } from '../../workflows/states';
 import type { DeviationListQuery, DeviationListSort, SortDirection } from '../validation/deviation-list';
 
@@ -76,8 +78,8 @@ function orderFor(sort: DeviationListSort, dir: SortDirection): SQL[] {
 
 function whereFor(query: DeviationListQuery, viewer: Actor, now: Date): SQL | undefined {
   const conditions: (SQL | undefined)[] = [
-    // A draft is its author's notebook until submitted; nobody else sees it, whatever their role.
-    or(ne(deviations.status, 'draft'), eq(deviations.raisedBy, viewer.id)),
+    // Who sees which deviation is the deviation kind's rule (a draft is its author's alone).
+    visibleWhere(deviationKind, viewer),
     query.status.length > 0 ? inArray(deviations.status, query.status) : undefined,
     query.classification.length > 0 ? inArray(deviations.classification, query.classification) : undefined,
     query.productId !== null ? eq(deviations.productId, query.productId) : undefined,

@@ -73,7 +73,10 @@ export interface SignatureDto {
   recordVersion: number;
   /** False when the record's content now differs from what was signed: "record changed after signing". */
   matches: boolean;
-  /** When it no longer matches: the parts that changed, in the record kind's words (empty for older signatures). */
+  /**
+   * When it no longer matches: the parts it covered that changed, in the record kind's words (empty
+   * for signatures made before parts were kept). Parts the record gained later do not count.
+   */
   changedParts: string[];
   /** A later signature of the same meaning on the same record (after a rework or a reopen), or null. */
   supersededBy: number | null;
@@ -96,7 +99,8 @@ export async function sign(tx: Tx, signer: VerifiedSigner, input: SignInput): Pr
   if (!user || !user.active) throw new ValidationError('Your account is deactivated.', { password: ['Your account is deactivated.'] });
 
   const contentHash = signatureContentHash(input.recordType, input.recordId, input.recordVersion, input.content);
-  const contentParts = canonicalJson(signaturePartHashes(input.recordType, input.recordId, input.recordVersion, input.content));
+  const partHashes = signaturePartHashes(input.recordType, input.recordId, input.recordVersion, input.content);
+  const contentParts = canonicalJson(partHashes);
   const manifest = {
     recordType: input.recordType,
     recordId: input.recordId,
@@ -128,7 +132,7 @@ export async function sign(tx: Tx, signer: VerifiedSigner, input: SignInput): Pr
     ],
     reason: input.reason ?? null,
   });
-  return toDto({ id, ...manifest, signatureHash: signatureManifestHash(manifest) }, { contentHash, parts: {} }, {}, null);
+  return toDto({ id, ...manifest, signatureHash: signatureManifestHash(manifest) }, { contentHash, parts: partHashes }, {}, null);
 }
 
 /** verifySigner + sign in a transaction of their own, for a signature that changes nothing else. */
@@ -158,6 +162,13 @@ function parseParts(text: string | null): Record<string, string> | null {
   }
 }
 
+/** "actions:round 2" reads as the kind's words for "actions" followed by "(round 2)". */
+function partLabel(part: string, labels: Record<string, string>): string {
+  const [base, detail] = part.split(':', 2) as [string, string | undefined];
+  const words = labels[base] ?? base.replace(/_/g, ' ');
+  return detail ? `${words} (${detail})` : words;
+}
+
 function toDto(
   row: SignatureRow,
   current: CurrentContent,
@@ -166,9 +177,11 @@ function toDto(
 ): SignatureDto {
   const meaning = isSignatureMeaning(row.meaning) ? row.meaning : null;
   const { id: _id, signatureHash, ...manifest } = row;
-  const matches = row.contentHash === current.contentHash;
   const signedParts = parseParts(row.contentParts);
-  const changed = matches || !signedParts ? [] : changedSignatureParts(signedParts, current.parts);
+  // A signature vouches for the parts it covered: those must be unchanged (a part that is gone counts
+  // as changed). Parts the record gained since (a later round of actions) are a later signature's.
+  const changed = signedParts ? changedSignatureParts(signedParts, current.parts).filter((part) => part in signedParts) : [];
+  const matches = signedParts ? changed.length === 0 : row.contentHash === current.contentHash;
   return {
     id: row.id,
     userId: row.userId,
@@ -179,7 +192,7 @@ function toDto(
     signedAt: `${row.signedAt.replace(' ', 'T')}Z`,
     recordVersion: row.recordVersion,
     matches,
-    changedParts: changed.map((part) => partLabels[part] ?? part.replace(/_/g, ' ')),
+    changedParts: changed.map((part) => partLabel(part, partLabels)),
     supersededBy,
     intact: meaning !== null && signatureManifestHash(manifest) === signatureHash,
   };
