@@ -44,6 +44,18 @@ export function cleanFileName(raw: string): string {
   return cleaned.slice(0, 255 - ext.length) + ext;
 }
 
+/**
+ * The record as this person may see it, if they may add evidence to it now; otherwise the same
+ * refusal the write path gives under the lock (404 not visible, 403 not theirs, 409 its state).
+ */
+export async function assertMayAttach(actor: RecordActor, recordType: RecordType, recordId: number, database: Db = db) {
+  const access = await getRecordAccess(database, recordType, recordId, actor);
+  if (access.attachRefusal) {
+    throw access.attachRefusalStatus === 409 ? new InvalidTransitionError(access.attachRefusal) : new ForbiddenError(access.attachRefusal);
+  }
+  return access;
+}
+
 export async function uploadAttachment(
   actor: RecordActor,
   input: UploadAttachmentInput,
@@ -53,11 +65,7 @@ export async function uploadAttachment(
   const database = options.database ?? db;
   const fileName = cleanFileName(input.file.name);
 
-  const access = await getRecordAccess(database, input.recordType, input.recordId, actor);
-  // The same refusal the write path gives under the lock, so a closed record answers alike either way.
-  if (access.attachRefusal) {
-    throw access.attachRefusalStatus === 409 ? new InvalidTransitionError(access.attachRefusal) : new ForbiddenError(access.attachRefusal);
-  }
+  const access = await assertMayAttach(actor, input.recordType, input.recordId, database);
   const contentType = await assertAcceptableFile(input.file.bytes, fileName);
   const sha256 = createHash('sha256').update(input.file.bytes).digest('hex');
   const key = newAttachmentKey(input.recordType, input.recordId);

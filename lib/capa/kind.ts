@@ -256,6 +256,13 @@ export const capaKind = defineRecordKind({
             .map((a) => a.ownerId),
         refusal: 'Only the owner of this action records it as completed.',
       },
+      condition: {
+        holds: (row, facts, params) => {
+          const id = actionIdOf(params);
+          return id === null ? currentRound(row, facts).some((a) => a.completedAt === null) : currentRound(row, facts).some((a) => a.id === id && a.completedAt === null);
+        },
+        refusal: 'This action is already recorded as completed (or belongs to an earlier round); it stays on record as it is.',
+      },
     },
     evidence: {
       label: 'Adding evidence',

@@ -32,7 +32,7 @@ async function reviewedVersion(database: DbOrTx, binding: TokenBinding): Promise
 /** Whether this person may be sent a fresh link to this CAPA now, and if not, why not. */
 export type FreshLinkVerdict = { allowed: true } | { allowed: false; why: string };
 
-const noRecordWhy =
+export const noRecordWhy =
   'This link does not say which CAPA it was for, so no fresh one can be sent from here. A QA approver can also review and sign a CAPA in the effectiveness check from its own page.';
 
 /** Whether the kind's rules let this person ask for a fresh link now (lib/capa/kind.ts, section review_link). */

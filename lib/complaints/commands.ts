@@ -286,7 +286,6 @@ export async function linkRecord(actor: RecordActor, raw: LinkInput): Promise<Co
  */
 export async function raiseCapaFromComplaint(actor: RecordActor, raw: RaiseCapaInput): Promise<ComplaintOutcome & { capa: { id: number; number: string } }> {
   const input = parseInput(raiseCapaSchema, raw);
-  assertCan(actor, 'capa.create');
   const outcome = await editRecord(complaintKind, {
     id: input.id,
     section: 'links',
@@ -294,6 +293,8 @@ export async function raiseCapaFromComplaint(actor: RecordActor, raw: RaiseCapaI
     expectedVersion: input.version,
     action: 'raise_capa',
     async apply(before, { tx }) {
+      // After the complaint's own checks (a complaint this person may not see stays missing).
+      assertCan(actor, 'capa.create');
       const [owner] = await tx
         .select({ id: users.id })
         .from(users)

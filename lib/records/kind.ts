@@ -99,7 +99,7 @@ export interface SectionRule<TRow, TRelated, TParticipant extends string> {
   /** Segregation of duties: who may not edit it because of what they did on the record. */
   independentOf?: readonly TParticipant[];
   /** A condition on the record's data beyond its state ("at triage, only a minor deviation"). */
-  condition?: { holds: Fn<[row: TRow, related: TRelated], boolean>; refusal: string };
+  condition?: { holds: Fn<[row: TRow, related: TRelated, params: unknown], boolean>; refusal: string };
   /** False for a note that changes nothing the version guards (a comment, a request to approve). */
   bumpsVersion?: boolean;
 }
@@ -418,7 +418,7 @@ export function checkSection<K extends AnyRecordKind>(
   }
   const conflict = conflictOfInterest(kind, actor, row, related, section.independentOf, section.label);
   if (conflict) return { ok: false, status: 403, scope: 'record', reason: conflict };
-  if (section.condition && !section.condition.holds(row, related)) {
+  if (section.condition && !section.condition.holds(row, related, params)) {
     return { ok: false, status: 409, scope: 'record', reason: section.condition.refusal };
   }
   return { ok: true };

@@ -1,7 +1,9 @@
 import { and, asc, eq } from 'drizzle-orm';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/db/client';
-import { auditEntries, deviations, stateHistory } from '@/db/schema';
+import { auditEntries, deviations, fillingRings, stateHistory } from '@/db/schema';
+import { writeAudit } from '@/lib/audit';
+import { writeTransaction, writeTransactionStats } from '@/lib/records/transaction';
 import { assertCan } from '@/lib/auth/permissions';
 import { quarantineRing } from '@/lib/equipment/commands';
 import { ConflictError, ForbiddenError, NotFoundError } from '@/lib/errors';
@@ -158,5 +160,46 @@ describe('creation and effects', () => {
       .orderBy(asc(stateHistory.id));
     expect(history.map((h) => h.event)).toEqual(['create']);
     expect(seen).toEqual([]);
+  });
+});
+
+describe('a transaction the database aborts', () => {
+  it('is run again from the start after a deadlock, so both writers succeed and each audit entry is written once', async () => {
+    const [first, second] = await Promise.all([makeRing(), makeRing()]);
+    const marker = `deadlock check ${Date.now()}`;
+    let attempts = 0;
+    let waiting = 0;
+    let release: () => void = () => {};
+    const bothHoldOne = new Promise<void>((resolve) => (release = resolve));
+    // Each takes one ring's row, waits until the other holds the other, then wants it: InnoDB breaks
+    // the cycle by aborting one of them (1213), which the write path runs again.
+    const writer = (mine: number, theirs: number) =>
+      writeTransaction(async (tx) => {
+        attempts++;
+        await tx.select().from(fillingRings).where(eq(fillingRings.id, mine)).for('update');
+        if (attempts <= 2) {
+          if (++waiting === 2) release();
+          await bothHoldOne;
+        }
+        await tx.select().from(fillingRings).where(eq(fillingRings.id, theirs)).for('update');
+        await writeAudit(tx, { actor: { id: null, name: 'test' }, recordType: 'filling_ring', recordId: mine, action: 'deadlock_check', reason: marker });
+      });
+    const retriesBefore = writeTransactionStats.retries;
+    await Promise.all([writer(first.id, second.id), writer(second.id, first.id)]);
+    expect(attempts).toBe(3);
+    expect(writeTransactionStats.retries - retriesBefore).toBe(1);
+    const entries = await db.select().from(auditEntries).where(and(eq(auditEntries.action, 'deadlock_check'), eq(auditEntries.reason, marker)));
+    expect(entries.map((e) => e.recordId).sort()).toEqual([first.id, second.id].sort());
+  });
+
+  it('is not run again for an error that is not a lock conflict', async () => {
+    let attempts = 0;
+    await expect(
+      writeTransaction(async () => {
+        attempts++;
+        throw new ConflictError();
+      }),
+    ).rejects.toBeInstanceOf(ConflictError);
+    expect(attempts).toBe(1);
   });
 });

@@ -165,7 +165,7 @@ export async function deviationIn(cast: Cast, state: DeviationState, author: Tes
     })
   ).record;
   r = (await assignInvestigation(cast.triager, { id: r.id, version: r.version })).record;
-  if (!reach('approval')) return done();
+  // Under investigation with everything written, so the investigator could sign it now.
   r = (
     await saveInvestigation(cast.investigator, {
       id: r.id,
@@ -178,7 +178,9 @@ export async function deviationIn(cast: Cast, state: DeviationState, author: Tes
     })
   ).record;
   const recommended = await recordDisposition(cast.investigator, { id: r.id, version: r.version, batchId: batch.id, disposition: 'release' });
-  r = (await submitForApproval(cast.investigator, { id: r.id, version: recommended.version, password: testPassword })).record;
+  r = { ...r, version: recommended.version };
+  if (!reach('approval')) return done();
+  r = (await submitForApproval(cast.investigator, { id: r.id, version: r.version, password: testPassword })).record;
   if (!reach('closed')) return done();
   r = (await approveDeviation(cast.approver, { id: r.id, version: r.version, password: testPassword })).record;
   return done();
@@ -200,10 +202,6 @@ export async function capaIn(cast: Cast, state: CapaState): Promise<Built & { ac
   ).record;
   let actionId: number | null = null;
   const done = () => ({ id: r.id, version: r.version, actionId });
-  if (state === 'cancelled') {
-    r = (await cancelCapa(cast.approver2, { id: r.id, version: r.version, reason: 'Raised twice (test).', password: testPassword })).record;
-    return done();
-  }
   const reach = (s: CapaState) => capaOrder.indexOf(state) >= capaOrder.indexOf(s);
   r = (
     await addAction(cast.investigator, {
@@ -216,6 +214,12 @@ export async function capaIn(cast: Cast, state: CapaState): Promise<Built & { ac
       dueAt: isoDay(Date.now() + 14 * dayMs),
     })
   ).record;
+  const [a] = await db.select().from(capaActions).where(eq(capaActions.capaId, r.id));
+  actionId = a!.id;
+  if (state === 'cancelled') {
+    r = (await cancelCapa(cast.approver2, { id: r.id, version: r.version, reason: 'Raised twice (test).', password: testPassword })).record;
+    return done();
+  }
   r = (
     await updatePlan(cast.investigator, {
       id: r.id,
@@ -230,8 +234,6 @@ export async function capaIn(cast: Cast, state: CapaState): Promise<Built & { ac
   if (!reach('implementation')) return done();
   const started = await startImplementation(cast.investigator, { id: r.id, version: r.version });
   r = started.record;
-  const [a] = await db.select().from(capaActions).where(eq(capaActions.capaId, r.id));
-  actionId = a!.id;
   if (!reach('effectiveness_check')) return done();
   r = (await completeAction(cast.operator, { id: r.id, actionId: a!.id, actionVersion: a!.version, evidence: '<p>Vacuum re-set to 0.6 bar; log sheet 14 signed.</p>' })).record;
   r = (await openEffectivenessCheck(cast.investigator, { id: r.id, version: r.version })).record;
