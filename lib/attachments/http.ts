@@ -37,7 +37,10 @@ export function evidenceRoutes(recordType: EvidenceRecordType) {
   };
   return {
     async GET(_request: Request, { params }: { params: Promise<{ id: string }> }) {
-      return respondEvidence(async () => listAttachments(recordType, await recordIdOf(params), await requireUser()));
+      return respondEvidence(async () => {
+        const user = await requireUser();
+        return listAttachments(recordType, await recordIdOf(params), user);
+      });
     },
     async POST(request: Request, { params }: { params: Promise<{ id: string }> }) {
       return respondEvidence(async () => {
