@@ -28,14 +28,17 @@ export const riskScaleVersions = mysqlTable(
   'risk_scale_versions',
   {
     id: id(),
-    version: int('version').notNull(),
+    /** The scale's own version number as people say it ("version 3"); `version` is the row's, always 1. */
+    scaleVersion: int('scale_version').notNull(),
     note: varchar('note', { length: 500 }).notNull(),
     publishedBy: int('published_by')
       .notNull()
       .references(() => users.id),
     publishedAt: utc('published_at').notNull(),
+    version: version(),
   },
-  (t) => [uniqueIndex('risk_scale_versions_version_uq').on(t.version)],
+  // Two administrators publishing from the same version both ask for the next number: one is refused here.
+  (t) => [uniqueIndex('risk_scale_versions_scale_version_uq').on(t.scaleVersion)],
 );
 
 export const riskScaleLevels = mysqlTable(
@@ -101,13 +104,23 @@ export const weightChecks = mysqlTable(
   ],
 );
 
-/** Days the site is closed besides weekends and US federal holidays; business-day clocks skip them. */
-export const siteClosures = mysqlTable('site_closures', {
-  day: date('day', { mode: 'string' }).primaryKey(),
-  description: varchar('description', { length: 200 }).notNull(),
-  active: boolean('active').notNull().default(true),
-  createdBy: int('created_by')
-    .notNull()
-    .references(() => users.id),
-  createdAt: createdAt(),
-});
+/**
+ * Days the site is closed besides weekends and US federal holidays; business-day clocks skip them.
+ * One row per day, deactivated and reactivated but never deleted. The id is what the audit trail
+ * names (entries from before it existed name the day as a number: lib/clocks/closure-id.ts).
+ */
+export const siteClosures = mysqlTable(
+  'site_closures',
+  {
+    id: id(),
+    day: date('day', { mode: 'string' }).notNull(),
+    description: varchar('description', { length: 200 }).notNull(),
+    active: boolean('active').notNull().default(true),
+    createdBy: int('created_by')
+      .notNull()
+      .references(() => users.id),
+    version: version(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('site_closures_day_uq').on(t.day)],
+);

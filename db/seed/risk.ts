@@ -17,7 +17,7 @@ export async function seedRiskScales(
 ): Promise<void> {
   const [row] = await tx
     .insert(riskScaleVersions)
-    .values({ version: 1, note: firstRiskScaleNote, publishedBy: actor.id!, publishedAt: new Date('2026-07-01T06:00:00.000Z') })
+    .values({ scaleVersion: 1, note: firstRiskScaleNote, publishedBy: actor.id!, publishedAt: new Date('2026-07-01T06:00:00.000Z') })
     .$returningId();
   await tx.insert(riskScaleLevels).values(
     riskDimensions.flatMap((dimension) =>

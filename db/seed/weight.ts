@@ -113,7 +113,7 @@ export async function seedWeightChecks(tx: Tx, scenario: DemoScenario): Promise<
   if (lots.length === 0) return;
   const batchRows = await tx.select({ id: batches.id, lotNumber: batches.lotNumber }).from(batches).where(inArray(batches.lotNumber, lots));
   const batchIds = new Map(batchRows.map((b) => [b.lotNumber, b.id]));
-  const people = await tx.select({ id: users.id, name: users.name, email: users.email }).from(users).where(inArray(users.email, [...recorders]));
+  const people = await tx.select({ id: users.id, name: users.name, role: users.role, email: users.email }).from(users).where(inArray(users.email, [...recorders]));
   const byEmail = new Map(people.map((u) => [u.email, u]));
   for (const lot of lots) {
     const batch = await getWeightBatch(batchIds.get(lot)!, tx);
@@ -126,7 +126,7 @@ export async function seedWeightChecks(tx: Tx, scenario: DemoScenario): Promise<
         person.id,
         c.checkedAt,
       );
-      await insertWeightCheck(tx, { id: person.id, name: person.name }, values, weightSeedAuditAction);
+      await insertWeightCheck(tx, { id: person.id, name: person.name, role: person.role }, values, weightSeedAuditAction);
     }
   }
 }

@@ -2,11 +2,15 @@ import 'server-only';
 import { and, eq, ne } from 'drizzle-orm';
 import { db, type DbOrTx, type Tx } from '../../db/client';
 import { users } from '../../db/schema';
-import { writeAudit } from '../audit';
+import { now } from '../clock';
 import { getEnv } from '../env';
 import { ValidationError } from '../errors';
 import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
+import { noteOnRecord } from '../records/notes';
+import { writeTransaction } from '../records/transaction';
+import { lockRowsInOrder, writeConsequence } from '../records/write-path';
+import { userKind } from '../users/kind';
 import { afterFailure, isLocked, lockMinutes, maxConsecutiveFailures } from './lockout';
 import { decoyHash, verifyPassword } from './passwords';
 import type { Role } from './roles';
@@ -75,66 +79,82 @@ async function notifyAdministratorsOfLock(
   }
 }
 
-type Outcome = 'ok' | 'wrong_password' | 'locked' | 'inactive';
+/** `changed`: the password kept changing while it was compared; nothing was counted. */
+type Outcome = 'ok' | 'wrong_password' | 'locked' | 'inactive' | 'changed';
+type AttemptResult = { outcome: Outcome; user?: AuthenticatedUser };
 
-/** One attempt against one account, in its own transaction so a failure is counted even if the caller rolls back. */
-async function attempt(
+/** How often a password is compared again when the stored hash changed while it was being compared. */
+const maxComparisons = 3;
+
+/**
+ * One attempt against one account. bcrypt is slow on purpose, so the password is compared first,
+ * against the hash as read without a lock; then a write transaction of its own (never the
+ * caller's, so a failure is counted even if the caller rolls back) locks the account row and
+ * decides from the row as it stands under the lock. Concurrent attempts therefore count one after
+ * another, and the account locks at exactly the fifth consecutive failure. If the hash changed in
+ * between (a reset, a new password), the comparison was against the old one and is made again.
+ *
+ * The bookkeeping (failure count, lock, last sign-in) is a consequence of the attempt, audited
+ * but leaving the account's version alone: an administrator's open form stays current.
+ */
+async function attempt(userId: number, password: string, purpose: Purpose): Promise<AttemptResult> {
+  for (let comparison = 1; comparison <= maxComparisons; comparison++) {
+    const [seen] = await db.select({ passwordHash: users.passwordHash }).from(users).where(eq(users.id, userId));
+    if (!seen) return { outcome: 'wrong_password' };
+    const passwordOk = await verifyPassword(password, seen.passwordHash);
+    const result = await writeTransaction((tx) => recordAttempt(tx, userId, seen.passwordHash, passwordOk, purpose));
+    if (result) return result;
+  }
+  return { outcome: 'changed' };
+}
+
+/** Null when the hash compared is no longer the account's; nothing is written then. */
+async function recordAttempt(
+  tx: Tx,
   userId: number,
-  password: string,
+  comparedHash: string,
+  passwordOk: boolean,
   purpose: Purpose,
-): Promise<{ outcome: Outcome; user?: AuthenticatedUser }> {
-  return db.transaction(async (tx) => {
-    const [user] = await tx.select().from(users).where(eq(users.id, userId)).for('update');
-    if (!user) return { outcome: 'wrong_password' as const };
-    const now = new Date();
-    const passwordOk = await verifyPassword(password, user.passwordHash);
-    if (!user.active) return { outcome: 'inactive' as const };
-    const actor = { id: user.id, name: user.name };
-    if (isLocked(user.lockedUntil, now)) {
-      await writeAudit(tx, {
-        actor,
-        recordType: 'user',
-        recordId: user.id,
-        action: `${purpose}_refused_locked`,
-      });
-      return { outcome: 'locked' as const };
-    }
+): Promise<AttemptResult | null> {
+  const [user] = await lockRowsInOrder(tx, users, eq(users.id, userId));
+  if (!user) return { outcome: 'wrong_password' };
+  if (user.passwordHash !== comparedHash) return null;
+  if (!user.active) return { outcome: 'inactive' };
+  const at = now();
+  const actor = { id: user.id, name: user.name };
+  if (isLocked(user.lockedUntil, at)) {
+    await noteOnRecord(tx, userKind, user.id, { actor, action: `${purpose}_refused_locked` });
+    return { outcome: 'locked' };
+  }
 
-    if (passwordOk) {
-      if (purpose === 'sign_in') {
-        await tx
-          .update(users)
-          .set({ failedSignins: 0, lockedUntil: null, lastSigninAt: now })
-          .where(eq(users.id, user.id));
-        await writeAudit(tx, { actor, recordType: 'user', recordId: user.id, action: 'signed_in' });
-      } else if (user.failedSignins > 0) {
-        await tx.update(users).set({ failedSignins: 0 }).where(eq(users.id, user.id));
-      }
-      return { outcome: 'ok' as const, user: { id: user.id, email: user.email, name: user.name, role: user.role } };
-    }
+  const bookkeeping = (action: string, changes: Partial<typeof users.$inferInsert>, reason: string | null = null) =>
+    writeConsequence(tx, userKind, user.id, { actor, action, reason, bumpsVersion: false, changes: () => changes });
 
-    const next = afterFailure(user.failedSignins, now);
-    await tx.update(users).set(next).where(eq(users.id, user.id));
-    await writeAudit(tx, {
-      actor,
-      recordType: 'user',
-      recordId: user.id,
-      action: purpose === 'sign_in' ? 'sign_in_failed' : `${purpose}_password_failed`,
-      changes: [{ field: 'failedSignins', from: user.failedSignins, to: next.lockedUntil ? maxConsecutiveFailures : next.failedSignins }],
-    });
-    if (next.lockedUntil) {
-      await writeAudit(tx, {
-        actor,
-        recordType: 'user',
-        recordId: user.id,
-        action: 'account_locked',
-        changes: [{ field: 'lockedUntil', from: user.lockedUntil, to: next.lockedUntil }],
-        reason: `${maxConsecutiveFailures} consecutive failed password entries; locked for ${lockMinutes} minutes`,
-      });
-      await notifyAdministratorsOfLock(tx, user, next.lockedUntil, purpose);
+  if (passwordOk) {
+    if (purpose === 'sign_in') {
+      await bookkeeping('signed_in', { failedSignins: 0, lockedUntil: null, lastSigninAt: at });
+    } else if (user.failedSignins > 0) {
+      // A right password ends the run of consecutive failures, whatever it was entered for.
+      await bookkeeping(`${purpose}_password_accepted`, { failedSignins: 0 });
     }
-    return { outcome: 'wrong_password' as const };
-  });
+    return { outcome: 'ok', user: { id: user.id, email: user.email, name: user.name, role: user.role } };
+  }
+
+  const next = afterFailure(user.failedSignins, at);
+  const failed = purpose === 'sign_in' ? 'sign_in_failed' : `${purpose}_password_failed`;
+  if (!next.lockedUntil) {
+    await bookkeeping(failed, { failedSignins: next.failedSignins });
+    return { outcome: 'wrong_password' };
+  }
+  // The fifth failure is counted as such, then the lock starts the count again.
+  await bookkeeping(failed, { failedSignins: maxConsecutiveFailures });
+  await bookkeeping(
+    'account_locked',
+    { failedSignins: next.failedSignins, lockedUntil: next.lockedUntil },
+    `${maxConsecutiveFailures} consecutive failed password entries; locked for ${lockMinutes} minutes`,
+  );
+  await notifyAdministratorsOfLock(tx, user, next.lockedUntil, purpose);
+  return { outcome: 'wrong_password' };
 }
 
 /**
@@ -165,6 +185,7 @@ function refusal(outcome: Exclude<Outcome, 'ok'>, purpose: Exclude<Purpose, 'sig
   if (outcome === 'locked') {
     return `Your account is locked after ${maxConsecutiveFailures} failed attempts. Try again in ${lockMinutes} minutes or ask an administrator.`;
   }
+  if (outcome === 'changed') return `Your password was changed while it was being checked. Enter it again. ${consequence[purpose]}`;
   return 'Your account is deactivated.';
 }
 

@@ -45,6 +45,8 @@ export const permissions = [
   'audit.read',
   'masterdata.manage',
   'users.manage',
+  'account.read',
+  'account.change_own_password',
   'settings.manage',
 ] as const;
 export type Permission = (typeof permissions)[number];
@@ -93,6 +95,10 @@ export const permissionTable: Record<Permission, Partial<Record<Role, Scope>>> =
   'audit.read': { qa_investigator: A, qa_approver: A, admin: A },
   'masterdata.manage': { admin: A },
   'users.manage': { admin: A },
+  // A user account is a record too: administrators see every one, each person their own, so the
+  // person can change their own password on the same write path (lib/users/kind.ts).
+  'account.read': { operator: O, supervisor: O, qa_investigator: O, qa_approver: O, admin: A },
+  'account.change_own_password': { operator: O, supervisor: O, qa_investigator: O, qa_approver: O, admin: O },
   'settings.manage': { admin: A },
 };
 

@@ -1,14 +1,16 @@
 import 'server-only';
-import { desc } from 'drizzle-orm';
-import { db, type DbOrTx } from '../../db/client';
-import { riskScaleLevels, riskScaleVersions } from '../../db/schema';
-import { diffFields, writeAudit } from '../audit';
-import { assertCan, type Actor } from '../auth/permissions';
+import { riskScaleLevels } from '../../db/schema';
+import { diffFields } from '../audit';
+import { assertCan } from '../auth/permissions';
+import { now } from '../clock';
 import { ConflictError, NotFoundError, ValidationError } from '../errors';
+import type { RecordActor } from '../records/kind';
+import { createRecord } from '../records/write-path';
 import { riskDimensions, type RiskScales } from '../risk/scales';
 import { parseInput } from '../validation/parse';
 import { publishRiskScalesSchema, riskScalesToFields } from '../validation/risk';
-import { getRiskScaleVersion, type RiskScaleVersionDto } from './queries';
+import { riskScaleKind } from './kind';
+import { getCurrentRiskScales, getRiskScaleVersion, type RiskScaleVersionDto } from './queries';
 
 /*
  * Publishing the risk scales. A published version is never edited: a change of wording is a new
@@ -17,9 +19,7 @@ import { getRiskScaleVersion, type RiskScaleVersionDto } from './queries';
  * old → new, and the administrator's note as the reason (21 CFR 11.10(e)).
  */
 
-export interface RiskScaleActor extends Actor {
-  name: string;
-}
+export type RiskScaleActor = RecordActor;
 
 export const staleFormMessage =
   'Someone published the scales since you opened this form. Reload it to start from the newest version; nothing was saved.';
@@ -35,64 +35,50 @@ const auditView = (version: number, scales: RiskScales | null, note: string | nu
   ...(scales ? riskScalesToFields(scales) : {}),
 });
 
-export async function publishRiskScales(
-  actor: RiskScaleActor,
-  input: unknown,
-  database: DbOrTx = db,
-): Promise<RiskScaleVersionDto> {
+export async function publishRiskScales(actor: RiskScaleActor, input: unknown): Promise<RiskScaleVersionDto> {
   assertCan(actor, 'risk.manage_scales');
   const data = parseInput(publishRiskScalesSchema, input);
-  let newVersion: number;
+  let published: { row: { scaleVersion: number } };
   try {
-    newVersion = await database.transaction(async (tx) => {
-      // Locking the newest row makes two publishers queue; the unique version index backs it up.
-      const [latest] = await tx
-        .select({ id: riskScaleVersions.id, version: riskScaleVersions.version, note: riskScaleVersions.note })
-        .from(riskScaleVersions)
-        .orderBy(desc(riskScaleVersions.version))
-        .limit(1)
-        .for('update');
-      const currentVersion = latest?.version ?? 0;
+    // No lock: two administrators publishing from the same version both ask for the next number,
+    // and the unique index on it refuses the second (below), which then reloads the form.
+    published = await createRecord(riskScaleKind, actor, 'risk.manage_scales', async (tx) => {
+      const current = await getCurrentRiskScales(tx);
+      const currentVersion = current?.version ?? 0;
       if (data.basedOnVersion !== currentVersion) throw new ConflictError(staleFormMessage);
-      const current = latest ? await getRiskScaleVersion(latest.version, tx) : null;
       const version = currentVersion + 1;
-      const before = auditView(currentVersion, current?.scales ?? null, latest?.note ?? null);
-      const after = auditView(version, data.levels, data.note);
-      const changes = diffFields(before, after);
+      const changes = diffFields(
+        auditView(currentVersion, current?.scales ?? null, current?.note ?? null),
+        auditView(version, data.levels, data.note),
+      );
       if (current && !changes.some((c) => c.field !== 'version' && c.field !== 'note')) {
         throw new ValidationError('The wording is the same as the current version. Change at least one step to publish.');
       }
-
-      const [row] = await tx
-        .insert(riskScaleVersions)
-        .values({ version, note: data.note, publishedBy: actor.id, publishedAt: new Date() })
-        .$returningId();
-      await tx.insert(riskScaleLevels).values(
-        riskDimensions.flatMap((dimension) =>
-          data.levels[dimension].map((l) => ({
-            scaleVersionId: row!.id,
-            dimension,
-            score: l.score,
-            label: l.label,
-            description: l.description,
-          })),
-        ),
-      );
-      await writeAudit(tx, {
-        actor: { id: actor.id, name: actor.name },
-        recordType: 'risk_scale',
-        recordId: row!.id,
+      return {
         action: `published version ${version}`,
-        changes,
         reason: data.note,
-      });
-      return version;
+        values: { scaleVersion: version, note: data.note, publishedBy: actor.id, publishedAt: now() },
+        audit: changes,
+        children: async (txc, row) => {
+          await txc.insert(riskScaleLevels).values(
+            riskDimensions.flatMap((dimension) =>
+              data.levels[dimension].map((l) => ({
+                scaleVersionId: row.id,
+                dimension,
+                score: l.score,
+                label: l.label,
+                description: l.description,
+              })),
+            ),
+          );
+        },
+      };
     });
   } catch (err) {
     if (isDuplicateKey(err)) throw new ConflictError(staleFormMessage);
     throw err;
   }
-  const published = await getRiskScaleVersion(newVersion, database);
-  if (!published) throw new NotFoundError('The published risk scale version');
-  return published;
+  const dto = await getRiskScaleVersion(published.row.scaleVersion);
+  if (!dto) throw new NotFoundError('The published risk scale version');
+  return dto;
 }

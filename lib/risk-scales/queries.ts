@@ -32,7 +32,7 @@ export interface ScoringDefectDto {
 
 const summaryColumns = {
   id: riskScaleVersions.id,
-  version: riskScaleVersions.version,
+  version: riskScaleVersions.scaleVersion,
   note: riskScaleVersions.note,
   publishedByName: users.name,
   publishedAt: riskScaleVersions.publishedAt,
@@ -67,7 +67,7 @@ export async function getCurrentRiskScales(database: DbOrTx = db): Promise<RiskS
     .select(summaryColumns)
     .from(riskScaleVersions)
     .innerJoin(users, eq(users.id, riskScaleVersions.publishedBy))
-    .orderBy(desc(riskScaleVersions.version))
+    .orderBy(desc(riskScaleVersions.scaleVersion))
     .limit(1);
   return withLevels(row, database);
 }
@@ -78,7 +78,7 @@ export async function getRiskScaleVersion(version: number, database: DbOrTx = db
     .select(summaryColumns)
     .from(riskScaleVersions)
     .innerJoin(users, eq(users.id, riskScaleVersions.publishedBy))
-    .where(eq(riskScaleVersions.version, version))
+    .where(eq(riskScaleVersions.scaleVersion, version))
     .limit(1);
   return withLevels(row, database);
 }
@@ -91,7 +91,7 @@ export async function listRiskScaleVersions(database: DbOrTx = db): Promise<Risk
     .select(summaryColumns)
     .from(riskScaleVersions)
     .innerJoin(users, eq(users.id, riskScaleVersions.publishedBy))
-    .orderBy(desc(riskScaleVersions.version))
+    .orderBy(desc(riskScaleVersions.scaleVersion))
     .limit(riskScaleHistoryLimit);
   return rows.map(toSummary);
 }

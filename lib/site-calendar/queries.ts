@@ -1,7 +1,9 @@
 import 'server-only';
 import { and, asc, eq, gte, inArray, lte } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { settings, siteClosures, users } from '../../db/schema';
+import { auditEntries, settings, siteClosures, users } from '../../db/schema';
+import type { FieldChange } from '../audit';
+import { closureRecordIdOf } from '../clocks/closure-id';
 import { addDays, type IsoDate, todayIn } from '../clocks/dates';
 import { type BusinessCalendar, makeCalendar } from '../clocks/business-days';
 import { type Classification, type DueDaySetting, dueDaySettingKeys, readDueDaySettings } from '../clocks/due-dates';
@@ -12,6 +14,7 @@ import { type Classification, type DueDaySetting, dueDaySettingKeys, readDueDayS
  */
 
 export interface SiteClosureDto {
+  id: number;
   day: IsoDate;
   description: string;
   active: boolean;
@@ -25,6 +28,7 @@ export async function listSiteClosures(
 ): Promise<SiteClosureDto[]> {
   return database
     .select({
+      id: siteClosures.id,
       day: siteClosures.day,
       description: siteClosures.description,
       active: siteClosures.active,
@@ -35,6 +39,38 @@ export async function listSiteClosures(
     .innerJoin(users, eq(users.id, siteClosures.createdBy))
     .where(and(gte(siteClosures.day, range.from), lte(siteClosures.day, range.to)))
     .orderBy(asc(siteClosures.day));
+}
+
+export interface ClosureAuditEntryDto {
+  id: number;
+  /** UTC, "YYYY-MM-DD HH:MM:SS.mmm" exactly as recorded. */
+  at: string;
+  userName: string;
+  action: string;
+  changes: FieldChange[];
+  reason: string | null;
+}
+
+/**
+ * A closure's audit trail, oldest first: the entries naming its id, and those written before
+ * closures had ids, which name its day as a number (lib/clocks/closure-id.ts).
+ */
+export async function listSiteClosureTrail(day: IsoDate, database: DbOrTx = db): Promise<ClosureAuditEntryDto[]> {
+  const [closure] = await database.select({ id: siteClosures.id }).from(siteClosures).where(eq(siteClosures.day, day));
+  if (!closure) return [];
+  const rows = await database
+    .select({
+      id: auditEntries.id,
+      at: auditEntries.at,
+      userName: auditEntries.userName,
+      action: auditEntries.action,
+      changes: auditEntries.changes,
+      reason: auditEntries.reason,
+    })
+    .from(auditEntries)
+    .where(and(eq(auditEntries.recordType, 'site_closure'), inArray(auditEntries.recordId, [closure.id, closureRecordIdOf(day)])))
+    .orderBy(asc(auditEntries.id));
+  return rows.map((r) => ({ ...r, changes: JSON.parse(r.changes) as FieldChange[] }));
 }
 
 /**

@@ -44,12 +44,21 @@ type UserRow = Pick<typeof users.$inferSelect, keyof typeof userColumns>;
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
+/** Field by field, so a whole row (as the write path hands back) never carries its password hash out. */
 export function toUserDto(row: UserRow): UserDto {
   return {
-    ...row,
+    id: row.id,
+    email: row.email,
+    name: row.name,
+    title: row.title,
+    role: row.role,
+    active: row.active,
     lockedUntil: iso(row.lockedUntil),
+    failedSignins: row.failedSignins,
     lastSigninAt: iso(row.lastSigninAt),
     passwordChangedAt: iso(row.passwordChangedAt),
+    mustChangePassword: row.mustChangePassword,
+    version: row.version,
     createdAt: row.createdAt.toISOString(),
   };
 }

@@ -1,42 +1,23 @@
 import 'server-only';
-import { db, type Db, type DbOrTx } from '../../db/client';
-import { weightChecks } from '../../db/schema';
-import { diffFields, writeAudit } from '../audit';
-import { assertCan } from '../auth/permissions';
+import type { Tx } from '../../db/client';
+import type { weightChecks } from '../../db/schema';
 import { now } from '../clock';
 import { NotFoundError, ValidationError } from '../errors';
 import type { RecordActor } from '../records/kind';
+import { createRecord, insertRecord } from '../records/write-path';
 import type { RecordWeightCheckInput } from '../validation/weight';
 import { type WeightEvaluation, evaluateWeightCheck } from '../weight/evaluate';
+import { weightCheckKind } from './kind';
 import { getWeightBatch, getWeightCheck } from './queries';
 import { type RecordedWeightCheck, type WeightBatchDto, batchStatusesTakingChecks } from './types';
 
 /*
  * Recording a weight check. The server evaluates the masses again with the same pure code the
- * page ran (the browser's verdict is never trusted), stores the row with the full evaluation and
- * writes the audit entry in the same transaction (21 CFR 11.10(e)). A check that cannot reach a
- * verdict yet (too few units, or a stage that needs more) is not stored: the operator weighs more.
+ * page ran (the browser's verdict is never trusted) and creates the check through the write path,
+ * which stores the row with the full evaluation and its audit entry in one transaction
+ * (21 CFR 11.10(e)). A check that cannot reach a verdict yet (too few units, or a stage that needs
+ * more) is not stored: the operator weighs more.
  */
-
-export const weightCheckAuditFields = [
-  'batchId',
-  'productId',
-  'machineId',
-  'ringId',
-  'method',
-  'massMode',
-  'shellMassMg',
-  'massesMg',
-  'sampleSize',
-  'meanMg',
-  'sdMg',
-  'minMg',
-  'maxMg',
-  'outOfLimitCount',
-  'verdict',
-  'note',
-  'checkedAt',
-] as const;
 
 const d = (n: number, places: number) => n.toFixed(places);
 
@@ -88,38 +69,33 @@ export function buildWeightCheckRow(
   };
 }
 
-/** Inserts a built row and its audit entry; the caller holds the transaction. */
+/**
+ * Inserts a built check with its audit entry through the write path, inside the caller's
+ * transaction (the demo seed records its checks this way, as the person who weighed them).
+ */
 export async function insertWeightCheck(
-  tx: DbOrTx,
-  actor: { id: number; name: string },
+  tx: Tx,
+  actor: RecordActor,
   values: typeof weightChecks.$inferInsert,
   action = 'record',
 ): Promise<number> {
-  const [row] = await tx.insert(weightChecks).values(values).$returningId();
-  const id = row!.id;
-  const audited = Object.fromEntries(
-    weightCheckAuditFields.map((f) => [f, f === 'checkedAt' ? (values.checkedAt as Date).toISOString() : (values[f] ?? null)]),
-  );
-  await writeAudit(tx, { actor, recordType: 'weight_check', recordId: id, action, changes: diffFields(null, audited, weightCheckAuditFields) });
-  return id;
+  const { row } = await insertRecord(tx, weightCheckKind, { actor, permission: 'weight_check.record', values, action });
+  return row.id;
 }
 
-export async function recordWeightCheck(
-  actor: RecordActor,
-  input: RecordWeightCheckInput,
-  database: Db = db,
-): Promise<RecordedWeightCheck> {
-  assertCan(actor, 'weight_check.record');
-  return database.transaction(async (tx) => {
+export async function recordWeightCheck(actor: RecordActor, input: RecordWeightCheckInput): Promise<RecordedWeightCheck> {
+  let evaluation: WeightEvaluation | undefined;
+  const created = await createRecord(weightCheckKind, actor, 'weight_check.record', async (tx) => {
     const batch = await getWeightBatch(input.batchId, tx);
     if (!batch) throw new NotFoundError('The batch');
     if (!(batchStatusesTakingChecks as readonly string[]).includes(batch.status)) {
       const message = `Batch ${batch.lotNumber} is ${batch.status}; in-process weight checks are recorded while a batch is in process or on hold.`;
       throw new ValidationError(message, { batchId: [message] });
     }
-    const { values, evaluation } = buildWeightCheckRow(batch, input, actor.id, now());
-    const id = await insertWeightCheck(tx, actor, values);
-    const check = await getWeightCheck(id, tx);
-    return { check: check!, evaluation };
+    const built = buildWeightCheckRow(batch, input, actor.id, now());
+    evaluation = built.evaluation;
+    return { action: 'record', values: built.values };
   });
+  const check = await getWeightCheck(created.row.id);
+  return { check: check!, evaluation: evaluation! };
 }

@@ -18,6 +18,9 @@ import { ForbiddenError } from '@/lib/errors';
  *   or oral complaint is recorded); QA reviews, investigates, answers and reopens it (21 CFR 211.198(a),
  *   21 CFR 111.560); the complainant's personal data is for QA alone (Annex 11 §12.1; data minimisation,
  *   GDPR Art. 5(1)(c)); an operator sees only the complaints they entered.
+ * - Accounts: administrators see and manage every account (Annex 11 §12.3: creating, changing and
+ *   cancelling access is recorded); every person sees their own and changes their own password, which
+ *   only they may know (21 CFR 11.300(b) on revising passwords, 11.100(a) on uniqueness to one person).
  * - 'own' = only records the user raised, created or owns (drafts before submission, own CAPA actions).
  */
 
@@ -59,6 +62,8 @@ calendar.manage           -    -    -    -    any
 audit.read                -    -    any  any  any
 masterdata.manage         -    -    -    -    any
 users.manage              -    -    -    -    any
+account.read              own  own  own  own  any
+account.change_own_password own own own own own
 settings.manage           -    -    -    -    any
 `;
 

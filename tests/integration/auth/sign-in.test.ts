@@ -100,6 +100,56 @@ describe('sign-in and lock-out', () => {
     expect(await verifyCredentials(u.email, password)).toBeNull();
   });
 
+  it('locks at exactly the fifth failure when wrong passwords arrive all at once (21 CFR 11.300(d); 5 tries: common practice)', async () => {
+    const u = await makeUser();
+    const tries = 8;
+    const results = await Promise.all(Array.from({ length: tries }, (_, i) => verifyCredentials(u.email, `parallel-wrong-${i}`)));
+    expect(results.every((r) => r === null)).toBe(true);
+
+    const [row] = await db.select().from(users).where(eq(users.id, u.id));
+    expect(row!.lockedUntil).not.toBeNull();
+    expect(row!.failedSignins).toBe(0);
+    const actions = await auditActions(u.id);
+    // Counted one after another under the row's lock: five failures, one lock, the rest refused.
+    expect(actions.filter((a) => a === 'sign_in_failed')).toHaveLength(5);
+    expect(actions.filter((a) => a === 'account_locked')).toHaveLength(1);
+    expect(actions.filter((a) => a === 'sign_in_refused_locked')).toHaveLength(tries - 5);
+    const notices = await db
+      .select({ id: mailOutbox.id })
+      .from(mailOutbox)
+      .where(and(eq(mailOutbox.recordType, 'user'), eq(mailOutbox.recordId, u.id)));
+    const admins = await db.select({ id: users.id }).from(users).where(and(eq(users.role, 'admin'), eq(users.active, true)));
+    expect(notices).toHaveLength(admins.length);
+  });
+
+  it('counts a wrong signature password even when the caller’s transaction rolls back (21 CFR 11.300(d))', async () => {
+    const u = await makeUser();
+    class Rollback extends Error {}
+    await db
+      .transaction(async (tx) => {
+        await tx.select().from(users).where(eq(users.id, u.id));
+        await expect(verifySignaturePassword(u.id, 'not it')).rejects.toBeInstanceOf(ValidationError);
+        throw new Rollback();
+      })
+      .catch((err: unknown) => {
+        if (!(err instanceof Rollback)) throw err;
+      });
+    const [row] = await db.select().from(users).where(eq(users.id, u.id));
+    expect(row!.failedSignins).toBe(1);
+    expect(await auditActions(u.id)).toContain('signature_password_failed');
+  });
+
+  it('keeps sign-in bookkeeping out of the account’s version, so an administrator’s open form stays current (common practice)', async () => {
+    const u = await makeUser();
+    for (let i = 0; i < 5; i++) await verifyCredentials(u.email, `wrong-${i}`);
+    await verifyCredentials(u.email, password);
+    await db.update(users).set({ lockedUntil: new Date(Date.now() - 1000) }).where(eq(users.id, u.id));
+    expect(await verifyCredentials(u.email, password)).not.toBeNull();
+    const [row] = await db.select().from(users).where(eq(users.id, u.id));
+    expect(row).toMatchObject({ version: 1, failedSignins: 0, lockedUntil: null });
+    expect(row!.lastSigninAt).not.toBeNull();
+  });
+
   it('counts a wrong signature password toward the same lock-out (21 CFR 11.200(a), 11.300(d))', async () => {
     const u = await makeUser();
     await expect(verifySignaturePassword(u.id, 'nope')).rejects.toBeInstanceOf(ValidationError);

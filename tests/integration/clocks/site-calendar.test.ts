@@ -10,7 +10,8 @@ import { addDays, type IsoDate } from '@/lib/clocks/dates';
 import { isBusinessDay } from '@/lib/clocks/business-days';
 import { ConflictError, ForbiddenError, ValidationError } from '@/lib/errors';
 import { addSiteClosure, deactivateSiteClosure, updateDueDays, type CalendarActor } from '@/lib/site-calendar/commands';
-import { getBusinessCalendar, getDueDaySettings, listSiteClosures } from '@/lib/site-calendar/queries';
+import { writeAudit } from '@/lib/audit';
+import { getBusinessCalendar, getDueDaySettings, listSiteClosureTrail, listSiteClosures } from '@/lib/site-calendar/queries';
 
 /*
  * The site calendar is GMP configuration: every change is attributable and audited (21 CFR
@@ -42,6 +43,9 @@ const auditOf = (recordType: 'site_closure' | 'setting', recordId: number) =>
     .where(and(eq(auditEntries.recordType, recordType), eq(auditEntries.recordId, recordId)))
     .orderBy(asc(auditEntries.id));
 
+/** A closure's audit entries name its id. */
+const closureIdOf = async (day: IsoDate) => (await db.select({ id: siteClosures.id }).from(siteClosures).where(eq(siteClosures.day, day)))[0]!.id;
+
 const changesOf = (entry: { changes: string }) => JSON.parse(entry.changes) as { field: string; from: unknown; to: unknown }[];
 
 afterAll(closeDb);
@@ -53,7 +57,7 @@ describe('site closures', () => {
     const before = addDays(day, -1);
     await addSiteClosure(admin, { day, description: 'Boiler replacement' });
 
-    const [entry] = await auditOf('site_closure', closureRecordIdOf(day));
+    const [entry] = await auditOf('site_closure', await closureIdOf(day));
     expect(entry).toMatchObject({ action: 'closure_added', userId: admin.id, userName: admin.name });
     expect(changesOf(entry!)).toContainEqual({ field: 'description', from: null, to: 'Boiler replacement' });
 
@@ -95,13 +99,33 @@ describe('site closures', () => {
     await expect(deactivateSiteClosure(admin, { day, reason: 'again please' })).rejects.toBeInstanceOf(ConflictError);
 
     await addSiteClosure(admin, { day, description: 'Planned maintenance, rebooked' });
-    const trail = await auditOf('site_closure', closureRecordIdOf(day));
+    const trail = await auditOf('site_closure', await closureIdOf(day));
     expect(trail.map((e) => e.action)).toEqual(['closure_added', 'closure_deactivated', 'closure_reactivated']);
     expect(trail[1]!.reason).toBe('Maintenance moved to the spring');
     expect(changesOf(trail[2]!)).toEqual([
       { field: 'active', from: false, to: true },
       { field: 'description', from: 'Planned maintenance', to: 'Planned maintenance, rebooked' },
     ]);
+  });
+
+  it('keeps the entries written before closures had ids in the closure’s trail (21 CFR 11.10(e): the trail stays readable)', async () => {
+    const admin = await makeUser('admin');
+    const day = freshDay();
+    // As migration 0010 leaves a closure added before it: the row, and its entry naming the day as a number.
+    await writeAudit(db, {
+      actor: { id: admin.id, name: admin.name },
+      recordType: 'site_closure',
+      recordId: closureRecordIdOf(day),
+      action: 'closure_added',
+      changes: [{ field: 'day', from: null, to: day }],
+    });
+    await db.insert(siteClosures).values({ day, description: 'Added before closures had ids', active: true, createdBy: admin.id });
+    await deactivateSiteClosure(admin, { day, reason: 'No longer planned' });
+
+    const trail = await listSiteClosureTrail(day);
+    expect(trail.map((e) => e.action)).toEqual(['closure_added', 'closure_deactivated']);
+    expect(trail[1]).toMatchObject({ reason: 'No longer planned', changes: [{ field: 'active', from: true, to: false }] });
+    expect((await auditOf('site_closure', await closureIdOf(day))).map((e) => e.action)).toEqual(['closure_deactivated']);
   });
 
   it('reports a missing closure as not found', async () => {

@@ -116,6 +116,28 @@ describe('risk scales', () => {
     expect((await current()).version).toBe(before.version);
   });
 
+  it('publishes once when two administrators publish from the same version at the same moment; the other is told to reload (21 CFR 11.10(e): nothing overwritten)', async () => {
+    const [first, second] = await Promise.all([makeUser('admin'), makeUser('admin')]);
+    const before = await current();
+    const publish = (who: typeof first, label: string) =>
+      publishRiskScales(who, {
+        ...riskScalesToFields(before.scales),
+        [riskLevelFieldName('occurrence', 3, 'label')]: label,
+        basedOnVersion: String(before.version),
+        note: `Occurrence 3 reworded by ${who.name}.`,
+      });
+    const results = await Promise.allSettled([publish(first, `Raced wording A ${Date.now()}`), publish(second, `Raced wording B ${Date.now()}`)]);
+    const won = results.filter((r) => r.status === 'fulfilled');
+    const lost = results.filter((r): r is PromiseRejectedResult => r.status === 'rejected');
+    expect(won).toHaveLength(1);
+    expect(lost).toHaveLength(1);
+    expect(lost[0]!.reason).toBeInstanceOf(ConflictError);
+    expect((lost[0]!.reason as Error).message).toBe(staleFormMessage);
+    const versions = (await listRiskScaleVersions()).map((v) => v.version);
+    expect(versions.filter((v) => v === before.version + 1)).toHaveLength(1);
+    expect(versions).not.toContain(before.version + 2);
+  });
+
   it('refuses to publish the same wording again', async () => {
     const admin = await makeUser('admin');
     const before = await current();

@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, ne } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray } from 'drizzle-orm';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, db, type DbOrTx } from '@/db/client';
 import { auditEntries, users } from '@/db/schema';
@@ -55,17 +55,22 @@ const newUserInput = (overrides: Record<string, unknown> = {}) => ({
   ...overrides,
 });
 
-/** Runs `body` inside a transaction that is always rolled back, so shared rows are left as they were. */
-class Rollback extends Error {}
-async function inRolledBackTransaction(body: (tx: DbOrTx) => Promise<void>): Promise<void> {
-  await db
-    .transaction(async (tx) => {
-      await body(tx);
-      throw new Rollback();
-    })
-    .catch((err) => {
-      if (!(err instanceof Rollback)) throw err;
-    });
+/**
+ * Runs `body` while the given people are the only active administrators: every other active
+ * administrator is set inactive for the duration and put back afterwards, so the last-administrator
+ * rule can be met. The commands run on the write path's own transactions, so a rolled-back outer
+ * transaction cannot hold this state for them; integration files run one at a time.
+ */
+async function withOnlyActiveAdmins(keep: readonly number[], body: () => Promise<void>): Promise<void> {
+  const others = (await db.select({ id: users.id }).from(users).where(and(eq(users.role, 'admin'), eq(users.active, true))))
+    .map((u) => u.id)
+    .filter((id) => !keep.includes(id));
+  if (others.length > 0) await db.update(users).set({ active: false }).where(inArray(users.id, others));
+  try {
+    await body();
+  } finally {
+    if (others.length > 0) await db.update(users).set({ active: true }).where(inArray(users.id, others));
+  }
 }
 
 afterAll(closeDb);
@@ -99,6 +104,8 @@ describe('creating a user', () => {
       title: [null, input.title],
       // The administrator chose the password, so the person must replace it (21 CFR 11.300(b); common practice).
       mustChangePassword: [null, true],
+      // The lock-out count starts at nothing failed; every field the kind audits is recorded at creation.
+      failedSignins: [null, 0],
     });
 
     // The new person can sign in with the password the administrator set.
@@ -225,32 +232,48 @@ describe('deactivating and reactivating', () => {
   });
 
   it('refuses to deactivate the last active administrator (common practice: access must stay manageable, EU GMP Annex 11 §12)', async () => {
-    await inRolledBackTransaction(async (tx) => {
-      // Actor A passed requireUser, then was deactivated by B before A's own command ran; every
-      // other administrator is inactive, so B is the last one.
-      const a = await makeUser('admin', tx);
-      const b = await makeUser('admin', tx);
-      await tx.update(users).set({ active: false }).where(and(eq(users.role, 'admin'), ne(users.id, b.id)));
-      const trailBefore = await auditFor(b.id, tx);
-
-      const err = await deactivateUser(a, b.id, { version: 1, reason: 'Last one out' }, tx).catch((e: unknown) => e);
+    // Actor A passed requireUser, then was deactivated by B before A's own command ran; every
+    // other administrator is inactive, so B is the last one.
+    const a = await makeUser('admin');
+    const b = await makeUser('admin');
+    await db.update(users).set({ active: false }).where(eq(users.id, a.id));
+    await withOnlyActiveAdmins([b.id], async () => {
+      const trailBefore = await auditFor(b.id);
+      const err = await deactivateUser(a, b.id, { version: 1, reason: 'Last one out' }).catch((e: unknown) => e);
       expect(err).toBeInstanceOf(ValidationError);
       expect((err as Error).message).toMatch(/at least one active administrator/);
-      expect(await userRow(b.id, tx)).toMatchObject({ active: true, version: 1 });
-      expect(await auditFor(b.id, tx)).toHaveLength(trailBefore.length);
+      expect(await userRow(b.id)).toMatchObject({ active: true, version: 1 });
+      expect(await auditFor(b.id)).toHaveLength(trailBefore.length);
     });
   });
 
   it('refuses to take the administrator role from the last active administrator', async () => {
-    await inRolledBackTransaction(async (tx) => {
-      const only = await makeUser('admin', tx);
-      await tx.update(users).set({ active: false }).where(and(eq(users.role, 'admin'), ne(users.id, only.id)));
-      const err = await changeUserRole(only, only.id, { version: 1, role: 'qa_approver', reason: 'Changing jobs' }, tx).catch(
+    const only = await makeUser('admin');
+    await withOnlyActiveAdmins([only.id], async () => {
+      const err = await changeUserRole(only, only.id, { version: 1, role: 'qa_approver', reason: 'Changing jobs' }).catch(
         (e: unknown) => e,
       );
       expect(err).toBeInstanceOf(ValidationError);
       expect((err as ValidationError).fieldErrors.role?.[0]).toMatch(/at least one active administrator/);
-      expect((await userRow(only.id, tx)).role).toBe('admin');
+      expect(await userRow(only.id)).toMatchObject({ role: 'admin', version: 1 });
+    });
+  });
+
+  it('lets only one of the last two administrators step down when both try at once (common practice, EU GMP Annex 11 §12)', async () => {
+    const a = await makeUser('admin');
+    const b = await makeUser('admin');
+    await withOnlyActiveAdmins([a.id, b.id], async () => {
+      const results = await Promise.allSettled([
+        changeUserRole(a, a.id, { version: 1, role: 'qa_approver', reason: 'Moving to QA' }),
+        changeUserRole(b, b.id, { version: 1, role: 'supervisor', reason: 'Moving to the floor' }),
+      ]);
+      expect(results.filter((r) => r.status === 'fulfilled')).toHaveLength(1);
+      const refused = results.filter((r): r is PromiseRejectedResult => r.status === 'rejected');
+      expect(refused).toHaveLength(1);
+      expect(refused[0]!.reason).toBeInstanceOf(ValidationError);
+      expect((refused[0]!.reason as Error).message).toMatch(/at least one active administrator/);
+      const roles = [(await userRow(a.id)).role, (await userRow(b.id)).role];
+      expect(roles.filter((r) => r === 'admin')).toHaveLength(1);
     });
   });
 
