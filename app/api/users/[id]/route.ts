@@ -1,9 +1,8 @@
-import { assertCan } from '@/lib/auth/permissions';
 import { requireUser } from '@/lib/auth/session';
 import { readJson, respond } from '@/lib/define-action';
 import { NotFoundError } from '@/lib/errors';
 import { updateUser } from '@/lib/users/commands';
-import { getUser } from '@/lib/users/queries';
+import { getVisibleUser } from '@/lib/users/detail';
 
 function parseId(raw: string): number {
   const id = Number(raw);
@@ -14,10 +13,8 @@ function parseId(raw: string): number {
 export async function GET(_request: Request, { params }: RouteContext<'/api/users/[id]'>) {
   return respond(async () => {
     const user = await requireUser();
-    assertCan(user, 'users.manage');
-    const found = await getUser(parseId((await params).id));
-    if (!found) throw new NotFoundError('The user');
-    return found;
+    // An account is seen by administrators and by its holder (the user kind's rule); to anyone else it is missing.
+    return getVisibleUser(parseId((await params).id), user);
   });
 }
 
