@@ -330,15 +330,16 @@ describe('passwords and lock-outs', () => {
 });
 
 describe('the PATCH entry point', () => {
-  it('dispatches on action, refuses an unknown action, and checks the role first', async () => {
+  it('dispatches on action, refuses an unknown action, and answers an account the person may not see as missing', async () => {
     const admin = await makeUser('admin');
     const target = await makeUser('operator');
     expect(await updateUser(admin, target.id, { action: 'change_role', version: 1, role: 'supervisor', reason: 'Cover' })).toMatchObject({
       role: 'supervisor',
     });
     await expect(updateUser(admin, target.id, { action: 'delete', version: 2 })).rejects.toBeInstanceOf(ValidationError);
+    // Another person's account is not the supervisor's to see: missing, before anything else (21 CFR 11.10(d)).
     await expect(updateUser(await makeUser('supervisor'), target.id, { action: 'unlock', version: 2 })).rejects.toBeInstanceOf(
-      ForbiddenError,
+      NotFoundError,
     );
   });
 });
