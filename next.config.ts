@@ -1,5 +1,5 @@
 import type { NextConfig } from 'next';
-import { getEnv } from './lib/env';
+import { getEnv } from './config/env';
 
 // Validate every setting once at build and at start: a bad configuration fails here with a message
 // naming each setting, not later inside a request.

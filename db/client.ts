@@ -1,6 +1,6 @@
 import { drizzle } from 'drizzle-orm/mysql2';
 import mysql from 'mysql2/promise';
-import { getEnv } from '../lib/env';
+import { getEnv } from '../config/env';
 import * as schema from './schema';
 
 /*

@@ -1,7 +1,7 @@
 import { migrate } from 'drizzle-orm/mysql2/migrator';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { getEnv } from '../lib/env';
+import { getEnv } from '../config/env';
 import { connect } from './client';
 import { applyGrants } from './grants';
 

@@ -426,7 +426,12 @@ export function RaiseForm(props: RaiseFormProps) {
               <h3 id="raise-photos-heading" className="font-semibold text-ink-900">
                 Photos and files <span className="font-normal text-ink-600">(optional)</span>
               </h3>
-              <EvidenceDropzone uploadUrl={`/api/deviations/${form.id}/attachments`} hint="Each one is attached to this draft as soon as it is sent; QA sees them once you submit." />
+              <EvidenceDropzone
+                uploadUrl={`/api/deviations/${form.id}/attachments`}
+                hint="Each one is attached to this draft as soon as it is sent; QA sees them once you submit."
+                // A photo gives the draft a new version; the next save or the submission sends that one.
+                onUploaded={(a) => setForm((f) => (f.id === a.recordId ? { ...f, version: a.recordVersion } : f))}
+              />
             </section>
           ) : null}
         </>

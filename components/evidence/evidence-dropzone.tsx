@@ -3,7 +3,7 @@
 import { useRouter } from 'next/navigation';
 import { useId, useRef, useState } from 'react';
 import { useDropzone } from 'react-dropzone';
-import type { AttachmentDto } from '@/lib/attachments/dto';
+import type { UploadedAttachmentDto } from '@/lib/attachments/dto';
 import { acceptHint, formatBytes, maxAttachmentBytes, tooLargeMessage } from '@/lib/attachments/limits';
 
 /*
@@ -30,12 +30,12 @@ export interface EvidenceDropzoneProps {
   refreshAfterUpload?: boolean;
   /** Short sentence under the heading. */
   hint?: string;
-  onUploaded?: (attachment: AttachmentDto) => void;
+  onUploaded?: (attachment: UploadedAttachmentDto) => void;
 }
 
 const offline = 'The server could not be reached. The file was not attached; try again when the connection is back.';
 
-function send(url: string, file: File, onProgress: (fraction: number) => void): Promise<{ ok: true; data: AttachmentDto } | { ok: false; message: string }> {
+function send(url: string, file: File, onProgress: (fraction: number) => void): Promise<{ ok: true; data: UploadedAttachmentDto } | { ok: false; message: string }> {
   return new Promise((resolve) => {
     const xhr = new XMLHttpRequest();
     xhr.open('POST', url);
@@ -44,7 +44,7 @@ function send(url: string, file: File, onProgress: (fraction: number) => void): 
       if (e.lengthComputable) onProgress(e.loaded / e.total);
     };
     xhr.onload = () => {
-      const body = xhr.response as (AttachmentDto & { message?: string }) | null;
+      const body = xhr.response as (UploadedAttachmentDto & { message?: string }) | null;
       if (xhr.status === 201 && body) resolve({ ok: true, data: body });
       else resolve({ ok: false, message: body?.message ?? `The upload was refused (HTTP ${xhr.status}). Try again.` });
     };

@@ -1,12 +1,10 @@
 import { index, int, mysqlEnum, mysqlTable, text, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
+import { capaActionCategories, capaActionKinds, capaSources } from '../../workflows/capa-terms';
 import { capaStates } from '../../workflows/states';
 import { users } from './users';
 import { createdAt, id, updatedAt, utc, version } from './columns';
 
-export const capaSources = ['deviation', 'complaint', 'trend'] as const;
-export const capaActionKinds = ['corrective', 'preventive'] as const;
-/** What an action changes: a machine setting, a procedure, training, a ring retirement, a supplier change. */
-export const capaActionCategories = ['machine_setting', 'procedure', 'training', 'ring_retirement', 'supplier_change', 'other'] as const;
+export { capaActionCategories, capaActionKinds, capaSources };
 
 export const capas = mysqlTable(
   'capas',

@@ -1,5 +1,5 @@
 import { boolean, index, int, mysqlEnum, mysqlTable, uniqueIndex, varchar } from 'drizzle-orm/mysql-core';
-import { roles } from '../../lib/auth/roles';
+import { roles } from '../../workflows/roles';
 import { createdAt, id, updatedAt, utc, version } from './columns';
 
 export const users = mysqlTable(

@@ -9,7 +9,7 @@ import type { RecordActor } from '../records/kind';
 import type { RecordType } from '../records/types';
 import { newAttachmentKey, recordAttachment } from '../storage';
 import { assertAcceptableFile } from './detect';
-import type { AttachmentDto } from './dto';
+import type { UploadedAttachmentDto } from './dto';
 import { getAttachment } from './queries';
 import { getRecordAccess } from './record-access';
 import { type AttachmentStore, defaultAttachmentStore } from './store';
@@ -60,7 +60,7 @@ export async function uploadAttachment(
   actor: RecordActor,
   input: UploadAttachmentInput,
   options: { store?: AttachmentStore; database?: Db } = {},
-): Promise<AttachmentDto> {
+): Promise<UploadedAttachmentDto> {
   const store = options.store ?? defaultAttachmentStore;
   const database = options.database ?? db;
   const fileName = cleanFileName(input.file.name);
@@ -78,6 +78,7 @@ export async function uploadAttachment(
   }
 
   let id: number;
+  let recordVersion: number;
   try {
     // On the record's own write path (its "evidence" section): checked again under the record's lock
     // (it may have been closed while the file was on its way), and the record takes a new version, so
@@ -103,9 +104,10 @@ export async function uploadAttachment(
       },
     });
     id = outcome.result!;
+    recordVersion = (outcome.record as { version: number }).version;
   } catch (err) {
     await store.remove(key).catch((removeErr: unknown) => console.error(`[attachments] orphan object ${key} not removed`, removeErr instanceof Error ? removeErr.message : removeErr));
     throw err;
   }
-  return getAttachment(id, actor, database);
+  return { ...(await getAttachment(id, actor, database)), recordVersion };
 }

@@ -22,6 +22,11 @@ export interface AttachmentDto {
   previewPath: string | null;
 }
 
+/** What an upload answers: the file, and the version the record has now (adding evidence gives it a new one). */
+export interface UploadedAttachmentDto extends AttachmentDto {
+  recordVersion: number;
+}
+
 export function toAttachmentDto(row: {
   id: number;
   recordType: string;

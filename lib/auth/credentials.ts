@@ -9,7 +9,7 @@ import { enqueueMail } from '../mail/outbox';
 import { renderMailLayout } from '../mail/templates/layout';
 import { noteOnRecord } from '../records/notes';
 import { writeTransaction } from '../records/transaction';
-import { lockRowsInOrder, writeConsequence } from '../records/write-path';
+import { lockRowsInOrder, writeConsequence } from '../records/rows';
 import { userKind } from '../users/kind';
 import { afterFailure, isLocked, lockMinutes, maxConsecutiveFailures } from './lockout';
 import { decoyHash, verifyPassword } from './passwords';

@@ -1,7 +1,8 @@
-/* The five roles. Pure data: importable from the schema, the permission table and the client. */
+/* The five roles and their names. Pure data: importable from the permission table and the client. */
 
-export const roles = ['operator', 'supervisor', 'qa_investigator', 'qa_approver', 'admin'] as const;
-export type Role = (typeof roles)[number];
+import type { Role } from '../../workflows/roles';
+
+export { type Role, roles } from '../../workflows/roles';
 
 export const roleLabels: Record<Role, string> = {
   operator: 'Operator',

@@ -1,4 +1,4 @@
-import type { capaActionCategories, capaActionKinds, capaSources } from '../../db/schema/capa';
+import type { capaActionCategories, capaActionKinds, capaSources } from '../../workflows/capa-terms';
 import type { CapaEventType } from '../../workflows/capa';
 import type { CapaState } from '../../workflows/states';
 

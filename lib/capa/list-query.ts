@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { capaSources } from '../../db/schema/capa';
+import { capaSources } from '../../workflows/capa-terms';
 import { capaStates } from '../../workflows/states';
 import { parseInput } from '../validation/parse';
 

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { capaActionCategories, capaActionKinds, capaSources } from '../../db/schema/capa';
+import { capaActionCategories, capaActionKinds, capaSources } from '../../workflows/capa-terms';
 import { capaEvents } from '../../workflows/capa';
 
 /*

@@ -94,7 +94,7 @@ describe('row locks and audit writes outside lib/records', () => {
     }
     // A detector that sees nothing would pass the tests below without checking anything.
     const lockFiles = new Set(locks.map((l) => l.file));
-    for (const file of ['lib/records/write-path.ts', 'lib/audit/index.ts', 'lib/mail/worker.ts']) expect(lockFiles).toContain(file);
+    for (const file of ['lib/records/rows.ts', 'lib/audit/index.ts', 'lib/mail/worker.ts']) expect(lockFiles).toContain(file);
   });
 
   it('tells a lock in code from one in a comment', () => {
