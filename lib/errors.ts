@@ -47,3 +47,8 @@ export class ServiceUnavailableError extends DomainError {}
 export function isDomainError(err: unknown): err is DomainError {
   return err instanceof DomainError;
 }
+
+/** A refusal of one field's value, said beside that field (422). */
+export function fieldError(field: string, message: string): ValidationError {
+  return new ValidationError(message, { [field]: [message] });
+}

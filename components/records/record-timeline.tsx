@@ -1,5 +1,4 @@
 import { formatUtc } from '@/components/ui/format';
-import { StatusBadge } from '@/components/ui/status-badge';
 import { type TimelineComment, type TimelineEntry, buildTimeline, isMeaningfulChange, userIdFields } from '@/lib/records/timeline';
 import type { AuditEntryDto, HistoryEntryDto } from '@/lib/records/trail';
 import type { SignatureDto } from '@/lib/signatures';

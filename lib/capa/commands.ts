@@ -1,9 +1,10 @@
 import 'server-only';
-import { and, eq, ne } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type { Tx } from '../../db/client';
-import { capaActions, complaints, deviations, recordLinks, users } from '../../db/schema';
+import { capaActions, complaints, deviations, recordLinks } from '../../db/schema';
 import { type FieldChange, diffFields } from '../audit';
-import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError } from '../errors';
+import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError, fieldError } from '../errors';
+import { assertCandidate } from '../users/candidates';
 import { activeUsers } from '../mail/record-notice';
 import type { RecordActor } from '../records/kind';
 import { type SignOptions, type WriteOutcome, createRecord, editRecord, insertRecord, transitionRecord } from '../records/write-path';
@@ -51,29 +52,12 @@ export type { CapaActionRow };
 export const raisedCapaRelation = 'raised_capa';
 
 /** A CAPA owner plans and runs it: an active QA investigator (capa.plan). */
-async function assertOwnerCandidate(tx: Tx, ownerId: number): Promise<void> {
-  const [owner] = await tx
-    .select({ id: users.id })
-    .from(users)
-    .where(and(eq(users.id, ownerId), eq(users.role, 'qa_investigator'), eq(users.active, true)));
-  if (!owner) {
-    const message = 'Pick an active QA investigator as the owner.';
-    throw new ValidationError(message, { ownerId: [message] });
-  }
-}
+const assertOwnerCandidate = (tx: Tx, ownerId: number) =>
+  assertCandidate(tx, ownerId, { roles: ['qa_investigator'] }, { field: 'ownerId', message: 'Pick an active QA investigator as the owner.' });
 
 /** An action can be given to anyone who works on the site: any active user but an administrator. */
-async function assertActionOwner(tx: Tx, ownerId: number): Promise<{ id: number; email: string }> {
-  const [owner] = await tx
-    .select({ id: users.id, email: users.email })
-    .from(users)
-    .where(and(eq(users.id, ownerId), eq(users.active, true), ne(users.role, 'admin')));
-  if (!owner) {
-    const message = 'Pick an active person to do this action.';
-    throw new ValidationError(message, { ownerId: [message] });
-  }
-  return owner;
-}
+const assertActionOwner = (tx: Tx, ownerId: number) =>
+  assertCandidate(tx, ownerId, { notRoles: ['admin'] }, { field: 'ownerId', message: 'Pick an active person to do this action.' });
 
 export interface NewCapa {
   title: string;
@@ -168,8 +152,7 @@ export async function updatePlan(actor: RecordActor, raw: UpdatePlanInput): Prom
     action: 'update_plan',
     apply(before) {
       if (input.ownerId !== undefined && input.ownerId !== before.ownerId) {
-        const message = 'The owner is changed with “Reassign the owner”, not with the plan.';
-        throw new ValidationError(message, { ownerId: [message] });
+        throw fieldError('ownerId', 'The owner is changed with “Reassign the owner”, not with the plan.');
       }
       return {
         changes: {
@@ -197,8 +180,7 @@ export async function reassignOwner(actor: RecordActor, raw: ReassignOwnerInput)
     reason: input.reason,
     async apply(before, { tx }) {
       if (input.ownerId === before.ownerId) {
-        const message = 'This person owns the CAPA already.';
-        throw new ValidationError(message, { ownerId: [message] });
+        throw fieldError('ownerId', 'This person owns the CAPA already.');
       }
       await assertOwnerCandidate(tx, input.ownerId);
       const next = { ...before, ownerId: input.ownerId, version: before.version + 1 };

@@ -1,7 +1,7 @@
 import 'server-only';
 import { and, asc, eq, inArray, ne } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { capaActions, capas, capsuleDefects, complaints, deviations, fillingRings, machines, users } from '../../db/schema';
+import {  capas, capsuleDefects, complaints, deviations, fillingRings, machines, users } from '../../db/schema';
 import type { CapaEventType } from '../../workflows/capa';
 import { can } from '../auth/permissions';
 import { type BlockedEvent, type RecordAbilities, type RecordActor, type SectionOf, abilitiesOf, checkSection } from '../records/kind';

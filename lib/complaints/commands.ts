@@ -1,6 +1,6 @@
 import 'server-only';
 import { and, eq } from 'drizzle-orm';
-import { batches, capas, capsuleDefects, deviations, products, recordLinks, users } from '../../db/schema';
+import { batches, capas, capsuleDefects, deviations, products, recordLinks } from '../../db/schema';
 import { assertCan } from '../auth/permissions';
 import { insertCapa } from '../capa/commands';
 import { now as clockNow } from '../clock';
@@ -8,6 +8,7 @@ import { addBusinessDays } from '../clocks/business-days';
 import { todayIn } from '../clocks/dates';
 import { getEnv } from '../env';
 import { ValidationError } from '../errors';
+import { assertCandidate } from '../users/candidates';
 import { enqueueMail } from '../mail/outbox';
 import type { RecordActor } from '../records/kind';
 import { type SignOptions, type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
@@ -295,11 +296,7 @@ export async function raiseCapaFromComplaint(actor: RecordActor, raw: RaiseCapaI
     async apply(before, { tx }) {
       // After the complaint's own checks (a complaint this person may not see stays missing).
       assertCan(actor, 'capa.create');
-      const [owner] = await tx
-        .select({ id: users.id })
-        .from(users)
-        .where(and(eq(users.id, input.ownerId), eq(users.role, 'qa_investigator'), eq(users.active, true)));
-      if (!owner) refuse({ ownerId: ['Pick an active QA investigator as the CAPA owner.'] });
+      await assertCandidate(tx, input.ownerId, { roles: ['qa_investigator'] }, { field: 'ownerId', message: 'Pick an active QA investigator as the CAPA owner.' });
       const created = await insertCapa(
         tx,
         actor,

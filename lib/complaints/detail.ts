@@ -1,7 +1,7 @@
 import 'server-only';
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { batches, capas, capsuleDefects, complaints, deviations, fillingRings, machines, products, recordLinks, users } from '../../db/schema';
+import { batches, capas, capsuleDefects, deviations, fillingRings, machines, products, recordLinks, users } from '../../db/schema';
 import type { ComplaintEventType } from '../../workflows/complaint';
 import { can } from '../auth/permissions';
 import { roleLabels } from '../auth/roles';
@@ -29,7 +29,6 @@ import {
 } from './commands';
 import { type ReportCountdown, reportCountdown } from './deadline';
 import { type ComplaintDto, complaintKind, personalFields } from './kind';
-import { complaintLinkRelations } from './labels';
 import { draftLetterHtml } from './letter';
 import { categoryLabel } from './queries';
 import { complaintEventRequestSchema } from './schemas';

@@ -1,5 +1,5 @@
 import 'server-only';
-import { type SQL, and, asc, count, desc, eq, inArray, or } from 'drizzle-orm';
+import { type SQL, and, asc, count, desc, eq, inArray } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, complaints, products, users } from '../../db/schema';
 import type { ComplaintState } from '../../workflows/states';

@@ -1,10 +1,10 @@
 import 'server-only';
 import { and, desc, eq, gte, inArray, lt, notExists, sql } from 'drizzle-orm';
-import { db, type DbOrTx, type Tx } from '../../db/client';
-import { batches, deviationBatches, deviations, fillingRings, machines, products, weightChecks } from '../../db/schema';
+import { db, type DbOrTx } from '../../db/client';
+import { batches, deviationBatches, fillingRings, machines, products, weightChecks } from '../../db/schema';
 import { diffFields } from '../audit';
 import { assertCan } from '../auth/permissions';
-import { ConflictError, ValidationError } from '../errors';
+import { ConflictError, ValidationError, fieldError } from '../errors';
 import type { RecordActor } from '../records/kind';
 import { editRecord, getVisibleRow } from '../records/write-path';
 import { parseInput } from '../validation/parse';
@@ -68,8 +68,7 @@ export async function recordDisposition(actor: RecordActor, raw: RecordDispositi
         .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
         .where(and(eq(deviationBatches.deviationId, row.id), eq(deviationBatches.batchId, input.batchId), eq(deviationBatches.onHold, true)));
       if (!held) {
-        const message = 'This batch is not held by this deviation.';
-        throw new ValidationError(message, { batchId: [message] });
+        throw fieldError('batchId', 'This batch is not held by this deviation.');
       }
 
       const needNote = noteRequirement(
@@ -276,14 +275,12 @@ export async function extendHolds(actor: RecordActor, raw: ExtendHoldsInput): Pr
       }
       const rejected = found.filter((b) => b.status === 'rejected');
       if (rejected.length > 0) {
-        const message = `${rejected.map((b) => b.lot).join(', ')} ${rejected.length === 1 ? 'is' : 'are'} rejected already; there is nothing to hold.`;
-        throw new ValidationError(message, { batchIds: [message] });
+        throw fieldError('batchIds', `${rejected.map((b) => b.lot).join(', ')} ${rejected.length === 1 ? 'is' : 'are'} rejected already; there is nothing to hold.`);
       }
       const heldBefore = related.held.filter((h) => h.onHold).map((h) => h.batchId);
       const already = found.filter((b) => heldBefore.includes(b.id));
       if (already.length > 0) {
-        const message = `This deviation holds ${already.map((b) => b.lot).join(', ')} already.`;
-        throw new ValidationError(message, { batchIds: [message] });
+        throw fieldError('batchIds', `This deviation holds ${already.map((b) => b.lot).join(', ')} already.`);
       }
 
       const label = row.number ?? `draft #${row.id}`;

@@ -1,9 +1,10 @@
 import 'server-only';
-import { and, eq, inArray } from 'drizzle-orm';
+import {  eq, inArray } from 'drizzle-orm';
 import type { Tx } from '../../db/client';
-import { batches, capsuleDefects, deviationBatches, users } from '../../db/schema';
+import { batches, capsuleDefects, deviationBatches } from '../../db/schema';
 import { diffFields } from '../audit';
-import { ValidationError } from '../errors';
+import { ValidationError, fieldError } from '../errors';
+import { assertCandidate } from '../users/candidates';
 import type { RecordActor } from '../records/kind';
 import { allocateNumber } from '../records/numbers';
 import { type SignOptions, type WriteOutcome, createRecord, editRecord, transitionRecord } from '../records/write-path';
@@ -185,18 +186,10 @@ export async function recordTriage(actor: RecordActor, raw: TriageDecisionInput)
         chosen: input.classification ?? null,
       });
       if (assessed.overrideJustificationRequired && !input.classificationReason) {
-        const message = `The computed class is ${assessed.computed}: give a written justification for recording ${assessed.classification}.`;
-        throw new ValidationError(message, { classificationReason: [message] });
+        throw fieldError('classificationReason', `The computed class is ${assessed.computed}: give a written justification for recording ${assessed.classification}.`);
       }
       if (input.investigatorId) {
-        const [investigator] = await tx
-          .select({ id: users.id })
-          .from(users)
-          .where(and(eq(users.id, input.investigatorId), eq(users.role, 'qa_investigator'), eq(users.active, true)));
-        if (!investigator) {
-          const message = 'Pick an active QA investigator.';
-          throw new ValidationError(message, { investigatorId: [message] });
-        }
+        await assertCandidate(tx, input.investigatorId, { roles: ['qa_investigator'] }, { field: 'investigatorId', message: 'Pick an active QA investigator.' });
       }
       return {
         changes: {

@@ -2,7 +2,7 @@ import 'server-only';
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
-import { batches, capsuleDefects, deviationBatches, deviations, fillingRings, machines, products, users } from '../../db/schema';
+import { batches, capsuleDefects, deviationBatches, fillingRings, machines, products, users } from '../../db/schema';
 import { can } from '../auth/permissions';
 import type { AllowedEvent } from '../records/workflow';
 import { type BlockedEvent, type RecordAbilities, type RecordActor, type SectionOf, abilitiesOf } from '../records/kind';

@@ -4,7 +4,7 @@ import { db, type DbOrTx } from '../../db/client';
 import { capsuleDefects, users } from '../../db/schema';
 import { type CauseBranch, type Fishbone, fishboneFor } from '../causes';
 import { type LinkedCapa, ensureCapaForDeviation, listCapasRaisedBy } from '../capa/create-from-deviation';
-import { ValidationError } from '../errors';
+import { ValidationError, fieldError } from '../errors';
 import type { RecordActor } from '../records/kind';
 import { abilitiesFor, editRecord, getVisibleRow } from '../records/write-path';
 import { cleanRichTextForSaving } from '../rich-text/sanitize';
@@ -177,8 +177,7 @@ export async function saveInvestigation(actor: RecordActor, raw: SaveInvestigati
       const known = new Set(fishboneFor(defect?.code ?? '').branches.flatMap((b) => b.causes.map((c) => c.id)));
       const unknown = input.causeAnalysis.catalogue.filter((m) => !known.has(m.causeId));
       if (unknown.length > 0) {
-        const message = 'Some marked causes are not probable causes of this defect; reload the page.';
-        throw new ValidationError(message, { causeAnalysis: [message] });
+        throw fieldError('causeAnalysis', 'Some marked causes are not probable causes of this defect; reload the page.');
       }
       const changes = {
         investigationReport: report && !report.empty ? report.html : null,

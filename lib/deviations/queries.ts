@@ -1,5 +1,5 @@
 import 'server-only';
-import { type SQL, and, asc, count, desc, eq, gte, inArray, lt, ne, notInArray, or, sql } from 'drizzle-orm';
+import { type SQL, and, asc, count, desc, eq, gte, inArray, lt, notInArray, sql } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
 import { batches, capsuleDefects, classifications, deviations, fillingRings, machines, products, users } from '../../db/schema';
 import { type Actor, assertCan } from '../auth/permissions';

@@ -1,7 +1,7 @@
 import 'server-only';
 import { eq } from 'drizzle-orm';
 import { machines } from '../../db/schema';
-import { ValidationError } from '../errors';
+import { ValidationError, fieldError } from '../errors';
 import { type RecordActor } from '../records/kind';
 import { type SignOptions, type WriteOutcome, createRecord, transitionRecord } from '../records/write-path';
 import {
@@ -84,8 +84,7 @@ export async function registerRing(actor: RecordActor, input: RegisterRingInput)
         throw new ValidationError('Pick an active machine.', { machineId: ['Pick an active machine.'] });
       }
       if (!machine.capsuleSizes.split(',').includes(input.capsuleSize)) {
-        const message = `This machine has no change parts for size ${input.capsuleSize} (it takes ${machine.capsuleSizes}).`;
-        throw new ValidationError(message, { capsuleSize: [message] });
+        throw fieldError('capsuleSize', `This machine has no change parts for size ${input.capsuleSize} (it takes ${machine.capsuleSizes}).`);
       }
       return {
         values: { serial: input.serial, machineId: input.machineId, capsuleSize: input.capsuleSize, condition: input.condition },
@@ -93,8 +92,7 @@ export async function registerRing(actor: RecordActor, input: RegisterRingInput)
     });
   } catch (err) {
     if (duplicateKey(err)) {
-      const message = `A ring with serial ${input.serial} is already registered.`;
-      throw new ValidationError(message, { serial: [message] });
+      throw fieldError('serial', `A ring with serial ${input.serial} is already registered.`);
     }
     throw err;
   }

@@ -4,7 +4,6 @@ import { db, type DbOrTx } from '../../db/client';
 import { fillingRings, machines } from '../../db/schema';
 import { ringStates, type RingState } from '../../workflows/states';
 import { assertCan, can } from '../auth/permissions';
-import { NotFoundError } from '../errors';
 import { type BlockedEvent, type RecordActor, abilitiesOf } from '../records/kind';
 import { getVisibleRow, loadRelated, signedContentOf } from '../records/write-path';
 import { type AuditEntryDto, type HistoryEntryDto, listAuditTrail, listStateHistory } from '../records/trail';

@@ -1,5 +1,5 @@
 import 'server-only';
-import { type InferSelectModel, type SQL, and, asc, eq } from 'drizzle-orm';
+import {  and, eq } from 'drizzle-orm';
 import type { MySqlTable } from 'drizzle-orm/mysql-core';
 import { type AnyStateMachine, initialTransition } from 'xstate';
 import { db, type DbOrTx, type Tx } from '../../db/client';
@@ -18,15 +18,13 @@ import {
   type InsertOf,
   type RecordAbilities,
   type RecordActor,
-  type RecordTable,
   type RelatedOf,
   type RowOf,
   type SectionOf,
   abilitiesOf,
   checkEvent,
   checkSection,
-  isVisibleTo,
-} from './kind';
+  isVisibleTo } from './kind';
 import { allocateNumber } from './numbers';
 import { readRow } from './rows';
 import { writeTransaction } from './transaction';
