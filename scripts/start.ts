@@ -2,7 +2,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { EnvError } from '../lib/env';
 import { roleLabels } from '../lib/auth/roles';
-import { demoPassword, demoUsers } from '../db/seed/demo-users';
+import { demoPassword, demoUsers } from './seed/demo-users';
 import { prepareDatabase } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';

@@ -66,7 +66,7 @@ export async function writeAudit(tx: DbOrTx, input: AuditInput): Promise<void> {
 }
 
 /**
- * For the demo scenario only (db/seed): its stories happened over months, and their audit entries
+ * For the demo scenario only (scripts/seed): its stories happened over months, and their audit entries
  * carry the dates of those events so the demo reads like a working site. The application never
  * calls this; tests/unit/audit/backdating.test.ts keeps it that way.
  */

@@ -1,6 +1,6 @@
 /*
  * Bringing a database up to date for the local stacks: the committed migrations and the app user's
- * grants (db/migrate.ts), then the demo scenario (db/seed) when the database has no users yet.
+ * grants (db/migrate.ts), then the demo scenario (scripts/seed) when the database has no users yet.
  * The imports are dynamic on purpose: callers load server-only-preload.mjs first, because the seed
  * imports app modules marked server-only.
  */
@@ -22,7 +22,7 @@ export async function prepareDatabase(opts: { adminUrl: string; appUrl: string }
   const { migrateDatabase } = await import('../../db/migrate');
   await migrateDatabase(opts.adminUrl, opts.appUrl);
   if ((await countUsers(opts.adminUrl)) > 0) return 'kept';
-  const { seedDemo } = await import('../../db/seed/index');
+  const { seedDemo } = await import('../seed/index');
   await seedDemo(opts.adminUrl);
   return 'seeded';
 }

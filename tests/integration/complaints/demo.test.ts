@@ -9,7 +9,7 @@ import { loadRelated, signedContentOf } from '@/lib/records/write-path';
 import { complaintStates } from '@/workflows/states';
 
 /*
- * The demo complaints (db/seed/complaints.ts) as a reviewer would look at them: every state present,
+ * The demo complaints (scripts/seed/complaints.ts) as a reviewer would look at them: every state present,
  * a lot with more than one complaint, a serious adverse event with a dietary supplement reported within
  * 15 business days (21 U.S.C. 379aa-1(c)(1)), a drug field alert within 3 working days
  * (21 CFR 314.81(b)(1)), and every seeded signature still matching the content it signed (21 CFR 11.70).

@@ -7,7 +7,7 @@ import { publishRiskScales, staleFormMessage } from '@/lib/risk-scales/commands'
 import { getCurrentRiskScales, getRiskScaleVersion, listRiskScaleVersions, listScoringDefects } from '@/lib/risk-scales/queries';
 import { defaultRiskScales } from '@/lib/risk/scales';
 import { riskLevelFieldName, riskScalesToFields } from '@/lib/validation/risk';
-import { seedAuditAction } from '@/db/seed';
+import { seedAuditAction } from '@/scripts/seed';
 import { makeUser } from '../support/fixtures';
 
 /*

@@ -2,12 +2,12 @@ import { and, count, eq, like } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { connect } from '@/db/client';
 import { auditEntries, batches, capsuleDefects, fillingRings, machines, products, settings, users } from '@/db/schema';
-import { seedBulkBatches } from '@/db/seed/bulk';
-import { SeedRefusedError, seedAuditAction, seedDemo } from '@/db/seed/index';
-import { demoPassword } from '@/db/seed/demo-users';
-import { buildDemoScenario } from '@/db/seed/scenario';
+import { seedBulkBatches } from '@/scripts/seed/bulk';
+import { SeedRefusedError, seedAuditAction, seedDemo } from '@/scripts/seed/index';
+import { demoPassword } from '@/scripts/seed/demo-users';
+import { buildDemoScenario } from '@/scripts/seed/scenario';
 import { verifyAuditChain } from '@/lib/audit';
-import { demoClosures } from '@/db/seed/clocks';
+import { demoClosures } from '@/scripts/seed/clocks';
 import { verifyPassword } from '@/lib/auth/passwords';
 import { testStack } from '../../helpers/env';
 

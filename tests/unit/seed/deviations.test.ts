@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { buildDemoDeviations, type PlannedDeviation } from '@/db/seed/deviations';
-import { buildDemoScenario, scenarioEnd, scenarioStart } from '@/db/seed/scenario';
+import { buildDemoDeviations, type PlannedDeviation } from '@/scripts/seed/deviations';
+import { buildDemoScenario, scenarioEnd, scenarioStart } from '@/scripts/seed/scenario';
 import { defaultDueDays, dueDateFor } from '@/lib/clocks/due-dates';
 import { parseRecordNumber } from '@/lib/records/number-format';
 import { classify } from '@/lib/risk/classify';

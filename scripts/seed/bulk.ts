@@ -1,7 +1,7 @@
 import { eq, like, sql } from 'drizzle-orm';
 import { writeAudit } from '../../lib/audit';
-import { connect } from '../client';
-import { batches, fillingRings, products, users } from '../schema';
+import { connect } from '../../db/client';
+import { batches, fillingRings, products, users } from '../../db/schema';
 import { mulberry32, pick, randomInt } from './prng';
 
 /*

@@ -1,8 +1,8 @@
 import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import { diffFields, writeDemoAuditAt } from '../../lib/audit';
 import { defaultAql, defaultInspectionLevel, defaultSeverity, reInspectionPlan } from '../../lib/deviations/disposition-plan';
-import type { Tx } from '../client';
-import { batches, deviationBatches, deviations, type dispositions, stateHistory, users } from '../schema';
+import type { Tx } from '../../db/client';
+import { batches, deviationBatches, deviations, type dispositions, stateHistory, users } from '../../db/schema';
 
 /*
  * Demo dispositions of the batches the seeded deviations hold, recorded as lib/deviations/batches.ts

@@ -1,6 +1,6 @@
 import { inArray } from 'drizzle-orm';
-import type { Tx } from '../client';
-import { batches, users } from '../schema';
+import type { Tx } from '../../db/client';
+import { batches, users } from '../../db/schema';
 import { buildWeightCheckRow, insertWeightCheck } from '../../lib/weight-checks/commands';
 import { getWeightBatch } from '../../lib/weight-checks/queries';
 import { type CapsuleSize, type WeightMethod, defaultMethod, xBarRChart } from '../../lib/weight';

@@ -2,8 +2,8 @@ import type { AuditActor } from '../../lib/audit';
 import type { RecordType } from '../../lib/records/types';
 import { defaultRiskScales, riskDimensions } from '../../lib/risk/scales';
 import { riskScalesToFields } from '../../lib/validation/risk';
-import type { Tx } from '../client';
-import { riskScaleLevels, riskScaleVersions } from '../schema';
+import type { Tx } from '../../db/client';
+import { riskScaleLevels, riskScaleVersions } from '../../db/schema';
 
 /* Version 1 of the risk scales: Plumbline's default capsule wording, published by the demo administrator. */
 

@@ -1,8 +1,8 @@
 import { inArray, like, sql } from 'drizzle-orm';
 import { writeAudit } from '../../lib/audit';
 import { deviationStates } from '../../workflows/states';
-import { connect } from '../client';
-import { batches, capsuleDefects, classifications, deviations, users } from '../schema';
+import { connect } from '../../db/client';
+import { batches, capsuleDefects, classifications, deviations, users } from '../../db/schema';
 import { mulberry32, pick, randomInt } from './prng';
 
 /*

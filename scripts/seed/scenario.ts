@@ -1,4 +1,4 @@
-import type { batchStatuses, capsuleSizes, ringConditions, shellMaterials } from '../schema';
+import type { batchStatuses, capsuleSizes, ringConditions, shellMaterials } from '../../db/schema';
 import type { RingState } from '../../workflows/states';
 import { defectCatalogue, type DefectSeed } from './defect-catalogue';
 import { demoUsers, type DemoUser } from './demo-users';

@@ -16,8 +16,8 @@ import { signatureContentHash, signatureManifestHash } from '../../lib/signature
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { type ComplaintEventType, complaintMachine } from '../../workflows/complaint';
 import type { ComplaintState } from '../../workflows/states';
-import type { Tx } from '../client';
-import { batches, capsuleDefects, complaints, deviations, products, recordLinks, signatures, siteClosures, stateHistory, users } from '../schema';
+import type { Tx } from '../../db/client';
+import { batches, capsuleDefects, complaints, deviations, products, recordLinks, signatures, siteClosures, stateHistory, users } from '../../db/schema';
 import { mulberry32, randomInt } from './prng';
 import { companyName } from './scenario';
 

@@ -14,8 +14,8 @@ import { signatureContentHash, signatureManifestHash } from '../../lib/signature
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { deviationMachine } from '../../workflows/deviation';
 import type { DeviationState } from '../../workflows/states';
-import type { Tx } from '../client';
-import { batches, capsuleDefects, deviationBatches, deviations, type dispositions, machines, signatures, stateHistory, users } from '../schema';
+import type { Tx } from '../../db/client';
+import { batches, capsuleDefects, deviationBatches, deviations, type dispositions, machines, signatures, stateHistory, users } from '../../db/schema';
 import { completeInvestigation, firstSubmission, investigationInProgress } from './deviation-investigations';
 import { mulberry32, randomInt, type Prng } from './prng';
 import { scenarioEnd, type DemoScenario } from './scenario';

@@ -2,8 +2,8 @@ import type { AuditActor } from '../../lib/audit';
 import { closureRecordIdOf } from '../../lib/clocks/closure-id';
 import { defaultDueDays, dueDaySettingKeys } from '../../lib/clocks/due-dates';
 import type { RecordType } from '../../lib/records/types';
-import type { Tx } from '../client';
-import { settings, siteClosures } from '../schema';
+import type { Tx } from '../../db/client';
+import { settings, siteClosures } from '../../db/schema';
 
 /*
  * The demo site calendar: closure targets by classification (critical 15, major 30, minor 30
