@@ -4,6 +4,7 @@ import { db, type DbOrTx } from '../../db/client';
 import { riskScaleLevels, riskScaleVersions } from '../../db/schema';
 import { diffFields, writeAudit } from '../audit';
 import { assertCan, type Actor } from '../auth/permissions';
+import { now } from '../clock';
 import { ConflictError, NotFoundError, ValidationError } from '../errors';
 import { riskDimensions, type RiskScales } from '../risk/scales';
 import { parseInput } from '../validation/parse';
@@ -65,7 +66,7 @@ export async function publishRiskScales(
 
       const [row] = await tx
         .insert(riskScaleVersions)
-        .values({ version, note: data.note, publishedBy: actor.id, publishedAt: new Date() })
+        .values({ version, note: data.note, publishedBy: actor.id, publishedAt: now() })
         .$returningId();
       await tx.insert(riskScaleLevels).values(
         riskDimensions.flatMap((dimension) =>
