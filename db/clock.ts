@@ -1,30 +1,19 @@
-import { AsyncLocalStorage } from 'node:async_hooks';
-
 /*
- * The time rows are stamped with. created_at and updated_at default to it (db/schema/columns.ts)
- * and lib/clock.ts's now() reads it for everything the write path records, so a record's own
- * columns agree with its history, audit entries and signatures. Everywhere but the demo seed it is
- * the server's clock. It lives here, below lib/, because the schema needs it and db/ imports
- * nothing from lib/.
+ * The time rows are stamped with: created_at and updated_at default to it (db/schema/columns.ts),
+ * so a record's own columns agree with the history, audit entries and signatures the write path
+ * stamps with lib/clock.ts's now(). That clock lives in lib/ (it knows the demo seed's story time)
+ * and installs itself here when it loads: db/ imports nothing from lib/, and the schema's enums
+ * also reach the pages' bundles, where nothing may pull in Node's async hooks. Until it is
+ * installed, and everywhere but the seed, it is the server's clock.
  */
 
-interface StoryTime {
-  at: number;
-  startedAt: number;
-}
-
-const storyTime = new AsyncLocalStorage<StoryTime>();
+let clock: () => Date = () => new Date();
 
 export function rowTime(): Date {
-  const story = storyTime.getStore();
-  // Inside a story the clock still runs, so the steps of one story keep their order in time.
-  return story ? new Date(story.at + (Date.now() - story.startedAt)) : new Date();
+  return clock();
 }
 
-/**
- * For lib/clock.ts's recordedAt only (tests/unit/audit/backdating.test.ts keeps every other caller
- * out): runs `work` with the clock set to `at`.
- */
-export function runAtStoryTime<T>(at: Date, work: () => Promise<T>): Promise<T> {
-  return storyTime.run({ at: at.getTime(), startedAt: Date.now() }, work);
+/** For lib/clock.ts only (tests/unit/audit/backdating.test.ts keeps every other caller out). */
+export function installRowClock(read: () => Date): void {
+  clock = read;
 }

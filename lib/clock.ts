@@ -1,5 +1,6 @@
 import 'server-only';
-import { rowTime, runAtStoryTime } from '../db/clock';
+import { AsyncLocalStorage } from 'node:async_hooks';
+import { installRowClock } from '../db/clock';
 
 /*
  * The time a write is recorded at. The application always records the server's own clock
@@ -10,12 +11,18 @@ import { rowTime, runAtStoryTime } from '../db/clock';
  * other caller out.
  */
 
+const storyTime = new AsyncLocalStorage<{ at: number; startedAt: number }>();
+
 /** Now, as the write path records it. */
 export function now(): Date {
-  return rowTime();
+  const story = storyTime.getStore();
+  // Inside a story the clock still runs, so the steps of one story keep their order in time.
+  return story ? new Date(story.at + (Date.now() - story.startedAt)) : new Date();
 }
+
+installRowClock(now);
 
 /** For scripts/seed only: runs `work` with the clock set to `at`. */
 export function recordedAt<T>(at: Date, work: () => Promise<T>): Promise<T> {
-  return runAtStoryTime(at, work);
+  return storyTime.run({ at: at.getTime(), startedAt: Date.now() }, work);
 }

@@ -39,9 +39,15 @@ describe('back-dated writes', () => {
     expect(callers.filter((rel) => !inSeed(rel))).toEqual([]);
   });
 
-  it('reach the row clock only through lib/clock.ts', () => {
-    const users = files.filter((f) => f.rel !== path.join('db', 'clock.ts') && /\brunAtStoryTime\b/.test(f.text)).map((f) => f.rel);
+  it('set the rows’ clock only from lib/clock.ts', () => {
+    const users = files.filter((f) => f.rel !== path.join('db', 'clock.ts') && /\binstallRowClock\b/.test(f.text)).map((f) => f.rel);
     expect(users).toEqual([path.join('lib', 'clock.ts')]);
+  });
+
+  it('keep Node-only code out of the schema, which the pages’ bundles reach too', () => {
+    const schema = files.filter((f) => f.rel.startsWith(`db${path.sep}schema`) || f.rel === path.join('db', 'clock.ts'));
+    expect(schema.length).toBeGreaterThan(3);
+    expect(schema.filter((f) => /from '(node:)?(async_hooks|fs|path|crypto)'/.test(f.text)).map((f) => f.rel)).toEqual([]);
   });
 
   it('have no side door into the audit trail any more', () => {
