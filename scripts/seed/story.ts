@@ -77,10 +77,6 @@ export class SeedContext {
     return r;
   }
 
-  has(key: string): boolean {
-    return this.records.has(key);
-  }
-
   number(key: string): string {
     const n = this.numbers.get(key);
     if (!n) throw new Error(`demo record ${key} has no number yet`);
