@@ -2,7 +2,7 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { EnvError } from '../lib/env';
 import { roleLabels } from '../lib/auth/roles';
-import { demoPassword, demoUsers } from '../db/seed/demo-users';
+import { demoPassword, demoUsers } from './seed/demo-users';
 import { prepareDatabase } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';
@@ -119,8 +119,22 @@ async function start(): Promise<{ app: ServiceProcess; worker: ServiceProcess | 
   if (teardown.closed) throw new StartError('stopped');
 
   say('applying database migrations ...');
-  const seed = await prepareDatabase({ adminUrl: mariadb.adminUrl, appUrl: mariadb.appUrl });
-  if (seed === 'seeded') say('loaded the Brackwater Capsule Co. demo data');
+  const seedStarted = Date.now();
+  const seed = await prepareDatabase({
+    adminUrl: mariadb.adminUrl,
+    appUrl: mariadb.appUrl,
+    // The seed writes as the app does; the fakes it would mail through are not needed until the app runs.
+    seedEnv: childEnv(
+      appSettings({ appUrl, databaseUrl: mariadb.appUrl, databaseAdminUrl: mariadb.adminUrl, authSecret: secrets.authSecret, s3: s3Preview, smtpPort: ports.PLUMBLINE_SMTP_PORT, nodeEnv: 'production' }),
+    ),
+    teardown,
+    recreateDatabase: () =>
+      mariadb.rootSql('DROP DATABASE IF EXISTS `plumbline`; CREATE DATABASE `plumbline` CHARACTER SET utf8mb4 COLLATE utf8mb4_unicode_ci;'),
+    log: say,
+    where: `${rel(dataDir)}/`,
+  });
+  const took = ((Date.now() - seedStarted) / 1000).toFixed(1);
+  if (seed === 'seeded' || seed === 'reseeded') say(`loaded the Brackwater Capsule Co. demo data (${took} s)`);
   if (seed === 'kept') say('database already has users: keeping its data (delete .data/demo/ for a fresh demo)');
 
   const s3 = await startS3Fake({
@@ -184,7 +198,7 @@ function explain(err: unknown): string {
 }
 
 async function main(): Promise<number> {
-  // The seed and the migrations import app modules marked server-only; see the preload's comment.
+  // The migrations import app modules marked server-only; see the preload's comment.
   await import('./services/server-only-preload.mjs');
   process.on('SIGINT', () => onSignal('SIGINT'));
   process.on('SIGTERM', () => onSignal('SIGTERM'));

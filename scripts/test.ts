@@ -2,7 +2,7 @@ import { existsSync, readdirSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { EnvError } from '../lib/env';
-import { prepareDatabase } from './services/database';
+import { copyDatabaseRows, migrateOnly, prepareDatabase } from './services/database';
 import { startMariaDb } from './services/mariadb';
 import { ensureBuild, startNextApp, startWorker, waitForApp, workerScript } from './services/next-app';
 import { Teardown, runForeground, watchAncestors } from './services/processes';
@@ -245,14 +245,21 @@ async function main(): Promise<number> {
         it: { adminUrl: mariadb.adminUrl, appUrl: mariadb.appUrl },
         e2e: { adminUrl: withDatabase(mariadb.adminUrl, 'plumbline_e2e'), appUrl: withDatabase(mariadb.appUrl, 'plumbline_e2e') },
       };
-      await Promise.all(Object.values(databases).map((d) => prepareDatabase(d)));
+      const s3Settings = { endpoint: '127.0.0.1', port: ports.PLUMBLINE_TEST_S3_PORT, accessKey: 'S3RVER', secretKey: 'S3RVER', bucket: 'plumbline-test' };
+      const seedEnv = (d: { adminUrl: string; appUrl: string }) =>
+        childEnv(appSettings({ appUrl, databaseUrl: d.appUrl, databaseAdminUrl: d.adminUrl, authSecret: secrets.authSecret, s3: s3Settings, smtpPort: ports.PLUMBLINE_TEST_SMTP_PORT, nodeEnv: 'test' }));
+      const seeding = Date.now();
+      // The browser tests get the same demo as a copy: seeding a second time would only cost the time again.
+      await Promise.all([prepareDatabase({ ...databases.it, seedEnv: seedEnv(databases.it), teardown }), migrateOnly(databases.e2e)]);
+      copyDatabaseRows(mariadb.rootSql, 'plumbline_it', 'plumbline_e2e');
+      say(`migrated and seeded the databases in ${((Date.now() - seeding) / 1000).toFixed(1)} s`);
 
       rmSync(path.join(dataDir, 's3'), { recursive: true, force: true });
       rmSync(mailDir, { recursive: true, force: true });
       const s3 = await startS3Fake({
         port: ports.PLUMBLINE_TEST_S3_PORT,
         dataDir: path.join(dataDir, 's3'),
-        bucket: 'plumbline-test',
+        bucket: s3Settings.bucket,
         allowedOrigins: [appUrl, `http://127.0.0.1:${appPort}`],
       });
       teardown.add('S3 fake', s3.stop);

@@ -65,15 +65,6 @@ export async function writeAudit(tx: DbOrTx, input: AuditInput): Promise<void> {
   await appendAudit(tx, [input], now());
 }
 
-/**
- * For the demo scenario only (db/seed): its stories happened over months, and their audit entries
- * carry the dates of those events so the demo reads like a working site. The application never
- * calls this; tests/unit/audit/backdating.test.ts keeps it that way.
- */
-export async function writeDemoAuditAt(tx: DbOrTx, input: AuditInput, at: Date): Promise<void> {
-  await appendAudit(tx, [input], at);
-}
-
 async function lockHead(tx: DbOrTx) {
   const read = () => tx.select().from(auditChainHead).where(eq(auditChainHead.id, 1)).for('update');
   const [head] = await read();

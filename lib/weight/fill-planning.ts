@@ -2,7 +2,7 @@
  * Fill-weight planning: how much powder a capsule size holds at the powder's tapped bulk density.
  * Nominal body-fill volumes (mL) from the teaching table "Hard Gelatin Capsules" of the UNC
  * Eshelman School of Pharmacy pharmaceutics labs (pharmlabs.unc.edu, capsules), the same table the
- * demo seed cites in db/seed/capsule-volumes.ts. Shell makers publish slightly different figures
+ * demo seed cites in scripts/seed/capsule-volumes.ts. Shell makers publish slightly different figures
  * per size; sizes are the same for gelatin and HPMC shells.
  */
 

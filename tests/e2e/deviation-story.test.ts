@@ -1,6 +1,6 @@
 import type { APIResponse, BrowserContext, Page } from 'playwright-core';
 import { afterAll, describe, expect, it } from 'vitest';
-import { demoPassword } from '@/db/seed/demo-users';
+import { demoPassword } from '@/scripts/seed/demo-users';
 import { launchBrowser, screenshot, signIn } from '../helpers/e2e';
 import { readMessages, waitForMessage } from '../helpers/mail';
 import { capsulePhotoPng, sha256Hex } from './support/capsule-photo';
@@ -105,7 +105,7 @@ describe('a broken-body deviation from the tablet on the line to an approved clo
     expect(factsText).toContain(filler.replace(/ \(.*\)$/, ''));
     expect(factsText).toContain(ring.replace(/ \(.*\)$/, ''));
 
-    // The catalogue (db/seed/defect-catalogue.ts) calls it "Broken body": major, severity 7.
+    // The catalogue (scripts/seed/defect-catalogue.ts) calls it "Broken body": major, severity 7.
     await operator.getByRole('radio', { name: /^Broken body/ }).check();
     await screenshot(operator, 'deviation-story-01-raise-what-and-where');
     await operator.getByRole('button', { name: 'Save and go on' }).click();

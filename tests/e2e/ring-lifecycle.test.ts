@@ -1,6 +1,6 @@
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { demoPassword } from '@/db/seed/demo-users';
+import { demoPassword } from '@/scripts/seed/demo-users';
 import { launchBrowser, screenshot, signIn, signOut } from '../helpers/e2e';
 import { readMessages, waitForMessage } from '../helpers/mail';
 

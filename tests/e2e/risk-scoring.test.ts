@@ -1,6 +1,6 @@
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { demoPassword } from '@/db/seed/demo-users';
+import { demoPassword } from '@/scripts/seed/demo-users';
 import { launchBrowser, screenshot, signIn } from '../helpers/e2e';
 
 /*
@@ -38,7 +38,7 @@ describe('risk scoring of a capsule defect', () => {
     const foreignMatter = await defect.locator('option', { hasText: /^Foreign matter/ }).getAttribute('value');
     expect(foreignMatter).toBeTruthy();
     await defect.selectOption(foreignMatter!);
-    // The catalogue (db/seed/defect-catalogue.ts) classes foreign matter critical, severity 9.
+    // The catalogue (scripts/seed/defect-catalogue.ts) classes foreign matter critical, severity 9.
     expect(await page.getByRole('group', { name: /^Severity \(S\)/ }).locator('input[value="9"]').isChecked()).toBe(true);
 
     await score('Severity', 9);

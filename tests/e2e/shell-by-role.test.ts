@@ -1,6 +1,6 @@
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { demoPassword, demoUsers, type DemoUser } from '@/db/seed/demo-users';
+import { demoPassword, demoUsers, type DemoUser } from '@/scripts/seed/demo-users';
 import { can, type Permission } from '@/lib/auth/permissions';
 import { roleLabels } from '@/lib/auth/roles';
 import { launchBrowser, screenshot, signIn, signOut, submitSignIn } from '../helpers/e2e';

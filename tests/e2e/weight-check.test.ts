@@ -1,7 +1,7 @@
 import type { BrowserContext, Page } from 'playwright-core';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
-import { demoPassword } from '@/db/seed/demo-users';
-import { buildDemoScenario } from '@/db/seed/scenario';
+import { demoPassword } from '@/scripts/seed/demo-users';
+import { buildDemoScenario } from '@/scripts/seed/scenario';
 import { launchBrowser, screenshot, signIn } from '../helpers/e2e';
 
 /*

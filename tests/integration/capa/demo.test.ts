@@ -3,6 +3,9 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/db/client';
 import { capas, recordLinks, signatures } from '@/db/schema';
 import { getCapaDetail } from '@/lib/capa/detail';
+import { capaKind } from '@/lib/capa/kind';
+import { loadRelated, signedContentOf } from '@/lib/records/write-path';
+import { listSignatures } from '@/lib/signatures';
 import { capaStates } from '@/workflows/states';
 
 /*
@@ -40,5 +43,25 @@ describe('demo CAPAs', () => {
       expect(sigs.map((s) => s.meaning)).toEqual(['approved', 'effective']);
       expect(detail.signatures.every((s) => s.matches && s.intact)).toBe(true);
     }
+  });
+
+  it('keep the signatures of CAPAs planned once matching what they signed, and replace a plan approval by the next round’s (21 CFR 11.70)', async () => {
+    const demo = await db.select().from(capas).where(like(capas.number, 'CAPA-2026-%'));
+    let checked = 0;
+    for (const c of demo.filter((x) => x.number <= 'CAPA-2026-0013')) {
+      const facts = await loadRelated(capaKind, db, c);
+      const sigs = await listSignatures(db, 'capa', c.id, (meaning) => signedContentOf(capaKind, meaning, c, facts));
+      for (const s of sigs) expect(s.intact, `${c.number} ${s.meaning}`).toBe(true);
+      if (c.planRound === 1) {
+        for (const s of sigs) expect(s.matches, `${c.number} ${s.meaning}: ${s.changedParts.join(', ')}`).toBe(true);
+        checked += sigs.length;
+      } else {
+        const approvals = sigs.filter((s) => s.meaning === 'approved');
+        expect(approvals.length, c.number).toBe(c.planRound);
+        expect(approvals.slice(0, -1).every((s) => s.supersededBy !== null), c.number).toBe(true);
+        expect(approvals.at(-1)!.matches, c.number).toBe(true);
+      }
+    }
+    expect(checked).toBeGreaterThanOrEqual(8);
   });
 });

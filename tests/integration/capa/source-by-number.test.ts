@@ -8,7 +8,7 @@ import { makeUser } from '../support/fixtures';
 
 /*
  * Opening a CAPA from a record named by its number (ICH Q10 3.2.2: the CAPA is traceable to the
- * deviation or complaint it follows from). The demo's DEV-2026-0001 is seeded (db/seed/deviations.ts).
+ * deviation or complaint it follows from). The demo's DEV-2026-0001 is seeded (scripts/seed/deviations.ts).
  */
 
 describe('findCapaSourceByNumber', () => {

@@ -9,7 +9,7 @@ import { loadRelated, signedContentOf } from '@/lib/records/write-path';
 import { complaintStates } from '@/workflows/states';
 
 /*
- * The demo complaints (db/seed/complaints.ts) as a reviewer would look at them: every state present,
+ * The demo complaints (scripts/seed/complaints.ts) as a reviewer would look at them: every state present,
  * a lot with more than one complaint, a serious adverse event with a dietary supplement reported within
  * 15 business days (21 U.S.C. 379aa-1(c)(1)), a drug field alert within 3 working days
  * (21 CFR 314.81(b)(1)), and every seeded signature still matching the content it signed (21 CFR 11.70).
@@ -18,6 +18,11 @@ import { complaintStates } from '@/workflows/states';
 afterAll(closeDb);
 
 const demo = () => db.select().from(complaints).where(like(complaints.number, 'CMP-2026-%'));
+/*
+ * The seeded ones: the seed dates them inside the scenario; other test files add complaints of their
+ * own today (and reopen one after closing it, which rightly breaks its closing signature).
+ */
+const seeded = async () => (await demo()).filter((r) => r.createdAt < new Date('2026-11-28T00:00:00Z'));
 
 describe('demo complaints', () => {
   it('hold complaints in every state, July to November 2026', async () => {
@@ -50,7 +55,9 @@ describe('demo complaints', () => {
   });
 
   it('keep every seeded signature matching what it signed (21 CFR 11.70)', async () => {
-    for (const row of await demo()) {
+    const rows = await seeded();
+    expect(rows.length).toBeGreaterThanOrEqual(20);
+    for (const row of rows) {
       const facts = await loadRelated(complaintKind, db, row);
       const content = (meaning: string) => signedContentOf(complaintKind, meaning, row, facts);
       for (const s of await listSignatures(db, 'complaint', row.id, content)) expect(s.matches || s.supersededBy !== null, `${row.number} ${s.meaning}`).toBe(true);

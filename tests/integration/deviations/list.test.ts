@@ -3,7 +3,7 @@ import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { connect, db } from '@/db/client';
 import { batches, capsuleDefects, deviations, products } from '@/db/schema';
-import { seedBulkDeviations } from '@/db/seed/bulk-deviations';
+import { seedBulkDeviations } from '@/scripts/seed/bulk-deviations';
 import { ForbiddenError } from '@/lib/errors';
 import { listDeviations, pageIdsQuery } from '@/lib/deviations/queries';
 import { parseDeviationListQuery } from '@/lib/validation/deviation-list';

@@ -7,7 +7,6 @@ import { publishRiskScales, staleFormMessage } from '@/lib/risk-scales/commands'
 import { getCurrentRiskScales, getRiskScaleVersion, listRiskScaleVersions, listScoringDefects } from '@/lib/risk-scales/queries';
 import { defaultRiskScales } from '@/lib/risk/scales';
 import { riskLevelFieldName, riskScalesToFields } from '@/lib/validation/risk';
-import { seedAuditAction } from '@/db/seed';
 import { makeUser } from '../support/fixtures';
 
 /*
@@ -33,14 +32,14 @@ const levelRows = async (versionId: number) =>
     .orderBy(asc(riskScaleLevels.dimension), asc(riskScaleLevels.score));
 
 describe('risk scales', () => {
-  it('the demo has version 1 with ten steps on each of the three scales, in the audit trail (21 CFR 11.10(e))', async () => {
+  it('the demo has version 1 with ten steps on each of the three scales, published through the product and in the audit trail (21 CFR 11.10(e))', async () => {
     const v1 = await getRiskScaleVersion(1);
     expect(v1?.version).toBe(1);
     expect(v1?.scales).toEqual(defaultRiskScales);
     const entries = await db
       .select()
       .from(auditEntries)
-      .where(and(eq(auditEntries.recordType, 'risk_scale'), eq(auditEntries.recordId, v1!.id), eq(auditEntries.action, seedAuditAction)));
+      .where(and(eq(auditEntries.recordType, 'risk_scale'), eq(auditEntries.recordId, v1!.id), eq(auditEntries.action, 'published version 1')));
     expect(entries).toHaveLength(1);
   });
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { defectCatalogue } from '../../../db/seed/defect-catalogue';
+import { defectCatalogue } from '../../../scripts/seed/defect-catalogue';
 import {
   causeBranches,
   causes,

@@ -1,6 +1,6 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { buildDemoDeviations, type PlannedDeviation } from '@/db/seed/deviations';
-import { buildDemoScenario, scenarioEnd, scenarioStart } from '@/db/seed/scenario';
+import { buildDemoDeviations, type PlannedDeviation } from '@/scripts/seed/deviations';
+import { buildDemoScenario, scenarioEnd, scenarioStart } from '@/scripts/seed/scenario';
 import { defaultDueDays, dueDateFor } from '@/lib/clocks/due-dates';
 import { parseRecordNumber } from '@/lib/records/number-format';
 import { classify } from '@/lib/risk/classify';
@@ -50,10 +50,10 @@ describe('demo deviations: a working site', () => {
     }
   });
 
-  it('numbers reported deviations DEV-2026-0001 onward without gaps, in order of reporting; drafts have none', () => {
+  it('numbers reported deviations DEV-2026-0001 onward without gaps, in order of reporting; drafts, kept or discarded, have none', () => {
     const numbered = planned.filter((d) => d.columns.number !== null);
-    expect(planned.filter((d) => d.status === 'draft').every((d) => d.columns.number === null)).toBe(true);
-    expect(numbered.every((d) => d.status !== 'draft')).toBe(true);
+    expect(planned.filter((d) => d.status === 'draft' || d.status === 'discarded').every((d) => d.columns.number === null)).toBe(true);
+    expect(numbered.every((d) => d.status !== 'draft' && d.status !== 'discarded')).toBe(true);
     const byReporting = [...numbered].sort((a, b) => a.columns.reportedAt!.localeCompare(b.columns.reportedAt!));
     // Common practice: deviation numbers are sequential so a missing record shows as a gap.
     expect(byReporting.map((d) => parseRecordNumber(d.columns.number!))).toEqual(

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { buildDemoScenario } from '@/db/seed/scenario';
-import { planDemoWeightChecks, plannedChart } from '@/db/seed/weight';
+import { buildDemoScenario } from '@/scripts/seed/scenario';
+import { planDemoWeightChecks, plannedChart } from '@/scripts/seed/weight';
 import { evaluateWeightCheck } from '@/lib/weight';
 
 /*

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { capsuleVolumeMl as seedVolumes } from '@/db/seed/capsule-volumes';
+import { capsuleVolumeMl as seedVolumes } from '@/scripts/seed/capsule-volumes';
 import { capsuleSizeOrder, capsuleVolumeMl, expectedFillMg, sanityCheckTarget } from '@/lib/weight/fill-planning';
 
 /*

@@ -1,7 +1,7 @@
 import * as ss from 'simple-statistics';
 import { describe, expect, it } from 'vitest';
 import { beyond, countOutside, cp, cpk, mean, median, percentDeviation, sampleSd, summarize } from '@/lib/weight/stats';
-import { mulberry32 } from '@/db/seed/prng';
+import { mulberry32 } from '@/scripts/seed/prng';
 
 /*
  * Descriptive statistics, cross-checked against the simple-statistics package (an independent

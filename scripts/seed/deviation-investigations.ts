@@ -5,7 +5,7 @@ import type { CauseAnalysis, WhyStep } from '../../lib/deviations/investigation-
  * The investigation content of the demo deviations: a short rich-text report, five whys and the
  * marks on the cause-and-effect view, keyed by defect code so every deviation of a kind reads like
  * the same site's practice. Pure and deterministic. The story's own findings (report text, root
- * cause, impact) come in from db/seed/deviations.ts; this adds the structure around them.
+ * cause, impact) come in from scripts/seed/deviations.ts; this adds the structure around them.
  */
 
 export interface StoryFindings {

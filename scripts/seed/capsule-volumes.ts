@@ -1,4 +1,4 @@
-import type { capsuleSizes } from '../schema';
+import type { capsuleSizes } from '../../db/schema';
 
 /*
  * Approximate fill volume of each standard hard-capsule size, in mL. Values from the teaching table

@@ -1,4 +1,4 @@
-import type { batchStatuses, capsuleSizes, ringConditions, shellMaterials } from '../schema';
+import type { batchStatuses, capsuleSizes, ringConditions, shellMaterials } from '../../db/schema';
 import type { RingState } from '../../workflows/states';
 import { defectCatalogue, type DefectSeed } from './defect-catalogue';
 import { demoUsers, type DemoUser } from './demo-users';
@@ -58,6 +58,11 @@ export interface RingSeed {
   statusReason: string | null;
   /** ISO date-time (UTC) the ring was retired; batches from that day on do not use it. */
   retiredAt: string | null;
+  /**
+   * How a retired ring left service: who took it off the line and why, and the QA approver who
+   * retired it (not the same person: lib/equipment/ring-kind.ts).
+   */
+  retirement: { quarantined: { at: string; by: string; reason: string }; retiredBy: string } | null;
 }
 
 export interface BatchSeed {
@@ -208,6 +213,7 @@ function ring(serial: string, machineAssetTag: string, capsuleSize: CapsuleSize,
     status: 'in_service',
     statusReason: null,
     retiredAt: null,
+    retirement: null,
     ...extra,
   };
 }
@@ -221,6 +227,14 @@ const rings: RingSeed[] = [
     status: 'retired',
     statusReason: 'Hairline crack in the body plate found at changeover inspection; replaced by BWR-0103.',
     retiredAt: '2026-08-14T15:30:00.000Z',
+    retirement: {
+      quarantined: {
+        at: '2026-08-04T12:40:00.000Z',
+        by: 'operator@brackwater.example',
+        reason: 'Broken bodies in segment 7 on every revolution; ring taken off Filler 1 for inspection.',
+      },
+      retiredBy: 'approver@brackwater.example',
+    },
   }),
   ring('BWR-0201', 'BW-FIL-02', '00', { condition: 'worn' }),
   ring('BWR-0202', 'BW-FIL-02', '0'),
@@ -338,7 +352,7 @@ export function buildDemoScenario(): DemoScenario {
     users: demoUsers.map((u) => ({ ...u })),
     products: products.map((p) => ({ ...p })),
     machines: machines.map((m) => ({ ...m, capsuleSizes: [...m.capsuleSizes] })),
-    rings: rings.map((r) => ({ ...r })),
+    rings: rings.map((r) => ({ ...r, retirement: r.retirement && { ...r.retirement, quarantined: { ...r.retirement.quarantined } } })),
     batches: buildBatches(rand),
     defects: defectCatalogue.map((d) => ({ ...d })),
   };

@@ -1,15 +1,18 @@
 import { inArray, like, sql } from 'drizzle-orm';
 import { writeAudit } from '../../lib/audit';
 import { deviationStates } from '../../workflows/states';
-import { connect } from '../client';
-import { batches, capsuleDefects, classifications, deviations, users } from '../schema';
+import { connect } from '../../db/client';
+import { batches, capsuleDefects, classifications, deviations, users } from '../../db/schema';
 import { mulberry32, pick, randomInt } from './prng';
 
 /*
  * Synthetic deviations for scale tests: many rows, inserted in multi-row chunks, on top of the demo
- * master data (run seedDemo first), spread over every state. Numbers "DEV-BX-0000001", ... continue
- * after any earlier bulk run. One audit entry records the bulk load as a whole; these rows are test
- * load, not GMP records, and belong in no demo.
+ * master data (run the demo seed first), spread over every state. Numbers "DEV-BX-0000001", ...
+ * continue after any earlier bulk run. This is benchmark tooling, not the demo: it inserts its
+ * 100,000+ rows straight into the table as the admin database user, without the write path's
+ * history, signatures or per-row audit entries, because replaying each through the product would
+ * take far longer than the lists it exists to measure. One audit entry records the bulk load as a
+ * whole; these rows are test load, not GMP records, and belong in no demo.
  */
 
 const chunkSize = 2_000;

@@ -1,21 +1,14 @@
-import { inArray, sql } from 'drizzle-orm';
-import { diffFields, writeDemoAuditAt } from '../../lib/audit';
-import { sqlUtc } from '../../lib/audit/hash';
-import { roleLabels } from '../../lib/auth/roles';
 import { defaultDueDays, dueDateFor } from '../../lib/clocks/due-dates';
-import { type DeviationRow, deviationAuditFields, deviationKind } from '../../lib/deviations/kind';
 import { formatRecordNumber } from '../../lib/records/number-format';
 import { numberPrefixes } from '../../lib/records/types';
 import { planEvent, resolveSnapshot } from '../../lib/records/workflow';
 import { type Classification, classify } from '../../lib/risk/classify';
 import { rpn } from '../../lib/risk/rpn';
-import { loadRelated, signedContentOf } from '../../lib/records/write-path';
-import { signatureContentHash, signatureManifestHash } from '../../lib/signatures/hash';
 import type { SignatureMeaning } from '../../lib/signatures/meanings';
 import { deviationMachine } from '../../workflows/deviation';
 import type { DeviationState } from '../../workflows/states';
-import type { Tx } from '../client';
-import { batches, capsuleDefects, deviationBatches, deviations, type dispositions, machines, signatures, stateHistory, users } from '../schema';
+import type { dispositions } from '../../db/schema';
+import { capaSaveLeadMinutes } from './capa-stories';
 import { completeInvestigation, firstSubmission, investigationInProgress } from './deviation-investigations';
 import { mulberry32, randomInt, type Prng } from './prng';
 import { scenarioEnd, type DemoScenario } from './scenario';
@@ -24,15 +17,16 @@ import { scenarioEnd, type DemoScenario } from './scenario';
  * Demo deviations: about forty over the five months of the scenario, in every state, each told the
  * way it would have happened on Brackwater's capsule lines (broken bodies on the dented ring
  * BWR-0302, light fills after a powder lot change, unseparated capsules at low vacuum, a metal
- * particle that cost a batch). Every step of each record's path is checked against the deviation
- * machine with the demo user who took it, so the seeded history is one the product could have
- * written: the same events, state history, audit entries and signatures as the write path, dated
- * when the step happened. Numbers DEV-2026-0001... are given in order of reporting through the
- * record counter, so the next live submission continues the sequence.
+ * particle that cost a batch, drafts thrown away by their authors). This module plans them, purely:
+ * every step dated, given to the demo user who takes it, checked against the deviation machine and
+ * the record kind's segregation of duties, with the columns it is expected to leave. play-deviations.ts
+ * then sends each step through the command a person would use, at its time, and the product gives
+ * the numbers (DEV-2026-0001... in order of reporting), history, audit entries and signatures.
  *
- * Batches are created with their final status by the scenario; the holds here agree with them: a
- * batch on hold is held by an open deviation, a released batch only by a closed deviation that
- * released it, and the rejected batch by the closed deviation that rejected it.
+ * The holds agree with the scenario's batch statuses: a batch on hold is held by an open deviation,
+ * a released batch only by a closed deviation that released it, and the rejected batch by the closed
+ * deviation that rejected it. The assigned investigator recommends each held batch's disposition
+ * before signing the investigation; an independent QA approver decides it at a minor closure.
  */
 
 const operator = 'operator@brackwater.example';
@@ -86,7 +80,10 @@ export interface PlannedColumns {
 }
 
 export interface PlannedStep {
-  /** A machine event, 'create', or 'record_triage' (the triage edit, which changes no state). */
+  /**
+   * A machine event, 'create', or a section edit that changes no state: 'record_triage',
+   * 'save_investigation', 'record_disposition'.
+   */
   event: string;
   by: string;
   at: string;
@@ -96,6 +93,8 @@ export interface PlannedStep {
   changes: Partial<PlannedColumns>;
   /** What the machine asks this step to be signed as, if anything. */
   signature: SignatureMeaning | null;
+  /** For 'record_disposition': the held batch and what is recorded for it. */
+  disposition?: { lot: string; disposition: Disposition; note: string | null };
 }
 
 export interface PlannedDeviation {
@@ -129,7 +128,7 @@ interface Investigation {
   capaRequired: boolean;
 }
 
-type Path = 'draft' | 'reported' | 'triage_open' | 'triage_classified' | 'investigation' | 'approval' | 'closed' | 'closed_minor' | 'cancelled';
+type Path = 'draft' | 'discarded' | 'reported' | 'triage_open' | 'triage_classified' | 'investigation' | 'approval' | 'closed' | 'closed_minor' | 'cancelled';
 
 interface Story {
   key: string;
@@ -159,6 +158,8 @@ interface Story {
   cancel?: { reason: string; from: 'reported' | 'triage'; by: string };
   /** Calendar days the investigation took, when the story says. */
   investigationDays?: number;
+  /** Discarded: why its author threw the draft away. */
+  discard?: string;
 }
 
 const hold = (lot: string, disposition: Disposition | null, note: string | null, samplingPlan: string | null = null): PlannedHold => ({
@@ -689,11 +690,12 @@ export const deviationStories: readonly Story[] = [
     triage: { s: 5, o: 5, d: 4, investigator: investigator },
     rework: 'The vacuum log for the shift and the pump service record are missing; attach them and say when the filter was last changed.',
     investigation: {
-      report: 'Filter loaded again before its scheduled change, as in July. Containers 1-2 inspected 100 %.',
+      report:
+        'Filter loaded again before its scheduled change, as in July. Containers 1-2 inspected 100 %. The corrective action belongs to the open CAPA on the Filler 3 vacuum raised in July, whose effectiveness check this recurrence answers; no new CAPA.',
       category: 'machine',
       rootCause: 'Filter change interval too long for fine powders.',
       productImpact: 'Unseparated capsules removed from containers 1-2.',
-      capaRequired: true,
+      capaRequired: false,
     },
   },
   {
@@ -891,6 +893,40 @@ export const deviationStories: readonly Story[] = [
     title: 'Vacuum gauge low at start-up on Filler 4',
     whatHappened: 'Vacuum read 7 inHg at start-up before any batch was run.',
   },
+  // Drafts their authors threw away. Last in the list, so the stories above keep their times.
+  {
+    key: 'spill-0818-discarded',
+    path: 'discarded',
+    raisedBy: operator2,
+    occurredAt: '2026-08-18T14:35',
+    defect: null,
+    lot: 'BW-2026-0818-B',
+    title: 'Capsules on the floor beside Filler 3',
+    whatHappened: 'About two hundred filled capsules on the floor by the outfeed chute after the collection bin was changed.',
+    discard: 'Not a deviation: spillage at a bin change, swept up as waste under the line clearance procedure and recorded in the batch record.',
+  },
+  {
+    key: 'print-1007-discarded',
+    path: 'discarded',
+    raisedBy: operator,
+    occurredAt: '2026-10-07T16:20',
+    defect: 'print_colour',
+    lot: 'BW-2026-1007-B',
+    title: 'Faint print band on turmeric capsules',
+    whatHappened: 'The print band looked faint under the bench lamp at the hourly check.',
+    discard: 'Compared with the shell supplier’s reference card in daylight: the print matches. Nothing to report.',
+  },
+  {
+    key: 'dented-1111-discarded',
+    path: 'discarded',
+    raisedBy: supervisor,
+    occurredAt: '2026-11-11T18:30',
+    defect: 'dented_shell',
+    lot: 'BW-2026-1111-B',
+    title: 'Dented caps at packing',
+    whatHappened: 'Packing found dented caps in two containers.',
+    discard: 'Started twice, on the packing-room tablet and on the line tablet; the report went in from the line tablet.',
+  },
 ];
 
 const minuteMs = 60_000;
@@ -898,6 +934,10 @@ const hourMs = 60 * minuteMs;
 const dayMs = 24 * hourMs;
 /** Nothing in the demo happens after the scenario's last day. */
 const lastMoment = Date.parse(`${scenarioEnd}T23:00:00.000Z`);
+/** How long before signing it the investigator saves the finished investigation, when no CAPA story says. */
+const defaultSaveLeadMinutes = 30;
+/** The recommendations go in just before the signature that covers them. */
+const recommendationLeadMinutes = 5;
 
 const toIso = (ms: number) => new Date(ms).toISOString();
 
@@ -940,51 +980,99 @@ const emptyColumns = (story: Story): PlannedColumns => ({
   closedAt: null,
 });
 
-/**
- * Builds the demo deviations from the stories: each step dated, checked against the machine with
- * the demo user who takes it, and numbered in order of reporting. Pure and deterministic.
+/*
+ * A disposition recorded through the product carries an ISO 2859-1 plan only for a re-inspection,
+ * which the product works out from the lot size; the plan a story names for another disposition goes
+ * into its note instead.
  */
-export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] {
+function dispositionNote(h: PlannedHold): string | null {
+  if (!h.samplingPlan || h.recommendedDisposition === 're_inspect') return h.dispositionNote;
+  const plan = `Inspected to ${h.samplingPlan}.`;
+  return h.dispositionNote ? `${h.dispositionNote} ${plan}` : plan;
+}
+
+/**
+ * Builds the demo deviations from the stories: each step dated, checked against the machine and the
+ * kind's segregation of duties with the demo user who takes it, and numbered in order of reporting.
+ * Pure and deterministic. `saveLeads` are the minutes between the investigator saving the finished
+ * investigation (which opens the CAPA it asks for) and signing it, per deviation that raises a CAPA.
+ */
+export function buildDemoDeviations(
+  scenario: DemoScenario,
+  saveLeads: ReadonlyMap<string, number> = capaSaveLeadMinutes(),
+): PlannedDeviation[] {
   const rand = mulberry32(0xdec0_2026);
   const people = new Map(scenario.users.map((u, i) => [u.email, { id: i + 1, role: u.role }]));
   const defects = new Map(scenario.defects.map((d) => [d.code, d]));
   const lots = new Map(scenario.batches.map((b) => [b.lotNumber, b]));
+  for (const key of saveLeads.keys()) {
+    const story = deviationStories.find((s) => s.key === key);
+    if (!story?.investigation?.capaRequired) throw new Error(`demo CAPA raised from ${key}, whose investigation does not ask for one`);
+  }
 
   const planned = deviationStories.map((story) => {
     const batch = story.lot === null ? null : lots.get(story.lot);
     if (batch === undefined) throw new Error(`demo deviation ${story.key}: no batch ${story.lot}`);
+    if (story.investigation?.capaRequired && !saveLeads.has(story.key) && story.path !== 'investigation') {
+      throw new Error(`demo deviation ${story.key}: its investigation asks for a CAPA, which no CAPA story tells`);
+    }
     const steps: PlannedStep[] = [];
+    const holds = story.holds ?? [];
     let columns = emptyColumns(story);
     let state: DeviationState = 'draft';
     let at = Date.parse(columns.occurredAt) + randomInt(rand, 15, 50) * minuteMs;
     steps.push({ event: 'create', by: story.raisedBy, at: toIso(at), fromState: null, toState: 'draft', reason: null, changes: {}, signature: null });
 
+    const personOf = (email: string) => {
+      const person = people.get(email);
+      if (!person) throw new Error(`demo deviation ${story.key}: no demo user ${email}`);
+      return person;
+    };
+    const notAfterTheEnd = (event: string, ms: number) => {
+      if (ms > lastMoment) throw new Error(`demo deviation ${story.key}: ${event} falls after ${scenarioEnd}`);
+    };
     const take = (event: string, by: string, reason: string | null, changes: Partial<PlannedColumns> = {}) => {
-      const person = people.get(by);
-      if (!person) throw new Error(`demo deviation ${story.key}: no demo user ${by}`);
+      const person = personOf(by);
       const snapshot = resolveSnapshot(deviationMachine, state, {
-        raisedBy: people.get(story.raisedBy)!.id,
-        investigatorId: columns.investigator === null ? null : people.get(columns.investigator)!.id,
+        raisedBy: personOf(story.raisedBy).id,
+        investigatorId: columns.investigator === null ? null : personOf(columns.investigator).id,
         classification: columns.classification,
-        // Dispositions are decided before closing; the stories give every held batch one by then.
+        // Dispositions are recorded before closing; the stories give every held batch one by then.
         heldBatchesWithoutDisposition: 0,
       });
       const plan = planEvent(deviationMachine, snapshot, { type: event, actor: person });
       if (!plan.ok) throw new Error(`demo deviation ${story.key}: ${by} cannot ${event} in ${state} (${plan.problem})`);
+      // lib/deviations/kind.ts: nobody approves, closes, returns or cancels what they raised or investigated.
+      if (['approve', 'close_minor', 'return_for_rework', 'cancel'].includes(event) && (by === story.raisedBy || by === columns.investigator)) {
+        throw new Error(`demo deviation ${story.key}: ${by} may not ${event} a deviation they raised or investigated`);
+      }
       if (plan.rules.reasonRequired && !reason) throw new Error(`demo deviation ${story.key}: ${event} needs a reason`);
-      if (at > lastMoment) throw new Error(`demo deviation ${story.key}: ${event} falls after ${scenarioEnd}`);
+      notAfterTheEnd(event, at);
       const next = plan.nextState as DeviationState;
       steps.push({ event, by, at: toIso(at), fromState: state, toState: next, reason, changes, signature: plan.rules.signature });
       columns = { ...columns, ...changes };
       state = next;
     };
-    const edit = (event: string, by: string, changes: Partial<PlannedColumns>) => {
-      if (at > lastMoment) throw new Error(`demo deviation ${story.key}: ${event} falls after ${scenarioEnd}`);
-      steps.push({ event, by, at: toIso(at), fromState: state, toState: state, reason: null, changes, signature: null });
+    const edit = (event: string, by: string, when: number, changes: Partial<PlannedColumns>, disposition?: PlannedStep['disposition']) => {
+      notAfterTheEnd(event, when);
+      steps.push({ event, by, at: toIso(when), fromState: state, toState: state, reason: null, changes, signature: null, ...(disposition ? { disposition } : {}) });
       columns = { ...columns, ...changes };
+    };
+    /** Each held batch's disposition as recorded for it (the recommendation, or the decision it became). */
+    const recordDispositions = (by: string, when: number, which: 'recommended' | 'decided') => {
+      for (const h of holds) {
+        const disposition = which === 'decided' ? (h.disposition ?? h.recommendedDisposition) : (h.recommendedDisposition ?? h.disposition);
+        if (disposition === null) continue;
+        edit('record_disposition', by, when, {}, { lot: h.lot, disposition, note: dispositionNote(h) });
+      }
     };
 
     if (story.path === 'draft') return finish(story, batch, columns, state, steps);
+    if (story.path === 'discarded') {
+      at += randomInt(rand, 20, 90) * minuteMs;
+      take('discard', story.raisedBy, story.discard ?? null);
+      return finish(story, batch, columns, state, steps);
+    }
 
     at += randomInt(rand, 10, 40) * minuteMs;
     take('submit', story.raisedBy, null, { reportedAt: toIso(at) });
@@ -1019,7 +1107,7 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
       chosen: t.chosen?.classification ?? null,
     });
     at += randomInt(rand, 20, 70) * minuteMs;
-    edit('record_triage', triager, {
+    edit('record_triage', triager, at, {
       classification: result.classification,
       classificationReason: t.chosen ? `${result.reason} ${t.chosen.why}` : result.reason,
       severity: t.s,
@@ -1035,6 +1123,8 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
     if (story.path === 'closed_minor') {
       if (!story.justification) throw new Error(`demo deviation ${story.key}: a minor closure needs a justification`);
       at = nextWorkday(at, rand);
+      // At a minor closure the QA approver decides each held batch's disposition, just before signing.
+      recordDispositions(approver, at - minuteMs, 'decided');
       take('close_minor', approver, story.justification, { closureJustification: story.justification, closedAt: toIso(at) });
       return finish(story, batch, columns, state, steps);
     }
@@ -1042,9 +1132,12 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
     at += randomInt(rand, 5, 25) * minuteMs;
     take('assign_investigation', triager, null);
     if (story.path === 'investigation' && !story.rework) {
-      // Under way: the investigator has saved notes, the first whys and a few causes ruled out.
+      // Under way: the investigator has saved notes, the first whys and a few causes ruled out, and
+      // recommended a disposition for a held batch the day after the investigation opened.
+      const opened = at;
       at = Math.min(at + 3 * hourMs, lastMoment);
-      edit('save_investigation', t.investigator, investigationInProgress(story.defect));
+      edit('save_investigation', t.investigator, at, investigationInProgress(story.defect));
+      recordDispositions(t.investigator, Math.min(opened + dayMs, lastMoment), 'recommended');
       return finish(story, batch, columns, state, steps);
     }
 
@@ -1057,17 +1150,26 @@ export function buildDemoDeviations(scenario: DemoScenario): PlannedDeviation[] 
       productImpact: inv.productImpact,
       capaRequired: inv.capaRequired,
     };
+    /** The investigator saves the investigation, recommends the dispositions, then signs it. */
+    const signInvestigation = (contents: Partial<PlannedColumns>, lead: number) => {
+      edit('save_investigation', t.investigator, at - lead * minuteMs, contents);
+      recordDispositions(t.investigator, at - recommendationLeadMinutes * minuteMs, 'recommended');
+      take('submit_for_approval', t.investigator, null);
+    };
     const recent = Date.parse(columns.occurredAt) > Date.parse('2026-11-01T00:00:00.000Z');
     at = nextWorkday(at, rand, story.investigationDays ?? (recent ? randomInt(rand, 2, 4) : randomInt(rand, 6, 16)));
     if (story.rework) {
       // The first submission lacked what the approver asks for; the findings were completed after.
-      take('submit_for_approval', t.investigator, null, { ...findings, ...firstSubmission(story.defect, inv) });
+      signInvestigation({ ...findings, ...firstSubmission(story.defect, inv) }, saveLeads.get(story.key) ?? defaultSaveLeadMinutes);
       at = nextWorkday(at, rand);
       take('return_for_rework', approver, story.rework);
       if (story.path === 'investigation') return finish(story, batch, columns, state, steps);
       at = nextWorkday(at, rand, recent ? 1 : randomInt(rand, 2, 4));
+      edit('save_investigation', t.investigator, at - defaultSaveLeadMinutes * minuteMs, findings);
+      take('submit_for_approval', t.investigator, null);
+    } else {
+      signInvestigation(findings, saveLeads.get(story.key) ?? defaultSaveLeadMinutes);
     }
-    take('submit_for_approval', t.investigator, null, findings);
     if (story.path === 'approval') return finish(story, batch, columns, state, steps);
 
     at = nextWorkday(at, rand, randomInt(rand, 1, 4));
@@ -1116,198 +1218,3 @@ function finish(
     steps,
   };
 }
-
-interface Person {
-  id: number;
-  name: string;
-  title: string;
-  role: keyof typeof roleLabels;
-}
-
-/** Writes the demo deviations with their history, audit entries, signatures and holds. */
-export async function seedDeviations(tx: Tx, scenario: DemoScenario): Promise<void> {
-  const planned = buildDemoDeviations(scenario);
-  const people = new Map<string, Person>(
-    (await tx.select({ id: users.id, email: users.email, name: users.name, title: users.title, role: users.role }).from(users)).map(
-      (u) => [u.email, u],
-    ),
-  );
-  const lotNumbers = [...new Set(planned.flatMap((d) => [...(d.lot ? [d.lot] : []), ...d.holds.map((h) => h.lot)]))];
-  const batchRows = new Map(
-    (
-      await tx
-        .select({ id: batches.id, lot: batches.lotNumber, productId: batches.productId, machineId: batches.machineId, ringId: batches.ringId })
-        .from(batches)
-        .where(inArray(batches.lotNumber, lotNumbers))
-    ).map((b) => [b.lot, b]),
-  );
-  const defectIds = new Map((await tx.select({ id: capsuleDefects.id, code: capsuleDefects.code }).from(capsuleDefects)).map((d) => [d.code, d.id]));
-  const machineIds = new Map((await tx.select({ id: machines.id, tag: machines.assetTag }).from(machines)).map((m) => [m.tag, m.id]));
-  const person = (email: string) => {
-    const p = people.get(email);
-    if (!p) throw new Error(`demo user ${email} missing`);
-    return p;
-  };
-  const userId = (email: string | null) => (email === null ? null : person(email).id);
-  const date = (iso: string | null) => (iso === null ? null : new Date(iso));
-
-  // Reporting order decides the numbers: replay the submissions in that order.
-  const submissions = planned
-    .filter((d) => d.columns.number !== null)
-    .sort((a, b) => a.columns.number!.localeCompare(b.columns.number!));
-  const numbered = new Set<string>();
-  for (const d of submissions) {
-    await tx.execute(
-      sql`INSERT INTO record_counters (prefix, year, last_value) VALUES (${numberPrefixes.deviation}, ${2026}, LAST_INSERT_ID(1))
-          ON DUPLICATE KEY UPDATE last_value = LAST_INSERT_ID(last_value + 1)`,
-    );
-    const [rows] = (await tx.execute(sql`SELECT LAST_INSERT_ID() AS value`)) as unknown as [{ value: number | string }[]];
-    const given = formatRecordNumber(numberPrefixes.deviation, 2026, Number(rows[0]?.value));
-    if (given !== d.columns.number) throw new Error(`the DEV counter gave ${given} where the demo expects ${d.columns.number}`);
-    numbered.add(given);
-  }
-
-  for (const d of planned) {
-    const batch = d.lot === null ? null : batchRows.get(d.lot)!;
-    const toRow = (c: PlannedColumns, status: DeviationState, version: number, id: number, createdAt: Date, updatedAt: Date): DeviationRow => ({
-      id,
-      number: c.number,
-      status,
-      version,
-      title: c.title,
-      whatHappened: c.whatHappened,
-      immediateActions: c.immediateActions,
-      lineStopped: c.lineStopped,
-      capsulesSegregated: c.capsulesSegregated,
-      affectedCount: c.affectedCount,
-      sampleDescription: c.sampleDescription,
-      defectId: d.defectCode === null ? null : defectIds.get(d.defectCode)!,
-      productId: batch?.productId ?? null,
-      batchId: batch?.id ?? null,
-      machineId: batch?.machineId ?? (d.machineAssetTag ? machineIds.get(d.machineAssetTag)! : null),
-      ringId: batch?.ringId ?? null,
-      classification: c.classification,
-      classificationReason: c.classificationReason,
-      severity: c.severity,
-      occurrence: c.occurrence,
-      detection: c.detection,
-      rpn: c.rpn,
-      riskScaleVersion: c.rpn === null ? null : 1,
-      investigationReport: c.investigationReport,
-      fiveWhys: c.fiveWhys,
-      causeAnalysis: c.causeAnalysis,
-      rootCauseCategory: c.rootCauseCategory,
-      rootCause: c.rootCause,
-      productImpact: c.productImpact,
-      capaRequired: c.capaRequired,
-      closureJustification: c.closureJustification,
-      cancelReason: c.cancelReason,
-      raisedBy: person(d.raisedBy).id,
-      ownerId: userId(c.owner),
-      investigatorId: userId(c.investigator),
-      occurredAt: new Date(c.occurredAt),
-      reportedAt: date(c.reportedAt),
-      dueAt: date(c.dueAt),
-      closedAt: date(c.closedAt),
-      createdAt,
-      updatedAt,
-    });
-
-    const createdAt = new Date(d.steps[0]!.at);
-    const lastAt = new Date(d.steps[d.steps.length - 1]!.at);
-    const finalRow = toRow(d.columns, d.status, d.steps.length, 0, createdAt, lastAt);
-    const { id: _id, ...values } = finalRow;
-    const [inserted] = await tx.insert(deviations).values(values).$returningId();
-    const id = inserted!.id;
-    for (const h of d.holds) {
-      await tx.insert(deviationBatches).values({
-        deviationId: id,
-        batchId: batchRows.get(h.lot)!.id,
-        onHold: true,
-        recommendedDisposition: h.recommendedDisposition,
-        disposition: h.disposition,
-        dispositionNote: h.dispositionNote,
-        samplingPlan: h.samplingPlan,
-      });
-    }
-
-    // Replay the path so each history row, audit entry and signature shows the record as it was then.
-    let columns: PlannedColumns = { ...d.columns };
-    for (const s of d.steps) for (const k of Object.keys(s.changes) as (keyof PlannedColumns)[]) columns = { ...columns, [k]: null };
-    columns = { ...columns, number: null, investigator: null, owner: d.raisedBy, reportedAt: null, closedAt: null };
-    let before: DeviationRow | null = null;
-    for (const [i, s] of d.steps.entries()) {
-      columns = { ...columns, ...s.changes };
-      const at = new Date(s.at);
-      const after = toRow(columns, s.toState, i + 1, id, createdAt, at);
-      const actor = person(s.by);
-      if (s.event !== 'record_triage' && s.event !== 'save_investigation') {
-        await tx.insert(stateHistory).values({
-          recordType: 'deviation',
-          recordId: id,
-          event: s.event,
-          fromState: s.fromState,
-          toState: s.toState,
-          userId: actor.id,
-          comment: s.reason,
-          at,
-        });
-      }
-      const fields = s.event === 'record_triage' ? deviationAuditFields : ['status', ...deviationAuditFields];
-      await writeDemoAuditAt(
-        tx,
-        {
-          actor: { id: actor.id, name: actor.name },
-          recordType: 'deviation',
-          recordId: id,
-          action: s.event,
-          changes: diffFields(before, after, fields),
-          reason: s.reason,
-        },
-        at,
-      );
-      if (s.signature) await insertSignature(tx, actor, after, s.signature, s.reason, at);
-      before = after;
-    }
-  }
-  if (numbered.size !== submissions.length) throw new Error('demo deviation numbers are not unique');
-}
-
-async function insertSignature(
-  tx: Tx,
-  signer: Person,
-  row: DeviationRow,
-  meaning: SignatureMeaning,
-  reason: string | null,
-  at: Date,
-): Promise<void> {
-  const contentHash = signatureContentHash('deviation', row.id, row.version, signedContentOf(deviationKind, meaning, row, await loadRelated(deviationKind, tx, row))!);
-  const manifest = {
-    recordType: 'deviation',
-    recordId: row.id,
-    recordVersion: row.version,
-    userId: signer.id,
-    printedName: signer.name,
-    printedTitle: signer.title || roleLabels[signer.role],
-    meaning,
-    signedAt: sqlUtc(at),
-    contentHash,
-  };
-  const [inserted] = await tx
-    .insert(signatures)
-    .values({ ...manifest, signatureHash: signatureManifestHash(manifest) })
-    .$returningId();
-  await writeDemoAuditAt(
-    tx,
-    {
-      actor: { id: signer.id, name: signer.name },
-      recordType: 'deviation',
-      recordId: row.id,
-      action: 'signed',
-      changes: [{ field: 'signature', from: null, to: { id: inserted!.id, meaning, recordVersion: row.version, contentHash } }],
-      reason,
-    },
-    at,
-  );
-}
-

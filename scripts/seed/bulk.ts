@@ -1,13 +1,16 @@
 import { eq, like, sql } from 'drizzle-orm';
 import { writeAudit } from '../../lib/audit';
-import { connect } from '../client';
-import { batches, fillingRings, products, users } from '../schema';
+import { connect } from '../../db/client';
+import { batches, fillingRings, products, users } from '../../db/schema';
 import { mulberry32, pick, randomInt } from './prng';
 
 /*
  * Synthetic batches for scale tests: many rows, inserted in multi-row chunks, on top of the demo
- * master data (run seedDemo first). Lot numbers "BWX-0000001", ... continue after any earlier bulk
- * run. One audit entry records the bulk load as a whole; these rows are test load, not GMP records.
+ * master data (run the demo seed first). Lot numbers "BWX-0000001", ... continue after any earlier
+ * bulk run. This is benchmark tooling, not the demo: it inserts its 100,000+ rows straight into the
+ * table as the admin database user, because going through the product row by row would take far
+ * longer than the lists it exists to measure. One audit entry records the bulk load as a whole;
+ * these rows are test load, not GMP records.
  */
 
 const chunkSize = 2_000;

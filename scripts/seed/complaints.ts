@@ -1,25 +1,28 @@
-import { and, asc, desc, eq, gt, lte, sql } from 'drizzle-orm';
-import { diffFields, writeDemoAuditAt } from '../../lib/audit';
-import { sqlUtc } from '../../lib/audit/hash';
 import { roleLabels } from '../../lib/auth/roles';
-import { addBusinessDays, makeCalendar } from '../../lib/clocks/business-days';
 import { addDays } from '../../lib/clocks/dates';
-import { reportDueOn } from '../../lib/complaints/deadline';
-import { type ComplaintRow, complaintAuditFields, complaintKind } from '../../lib/complaints/kind';
-import { type ComplainantKind, type IntakeChannel, isNonDefectCategory, reportKindFor } from '../../lib/complaints/labels';
+import {
+  closeComplaint,
+  completeAssessment,
+  completeInvestigation,
+  createComplaint,
+  linkRecord,
+  recordReportSubmitted,
+  saveAssessment,
+  saveInvestigation,
+  saveResponseDraft,
+  sendResponse,
+  skipInvestigation,
+  startAssessment,
+} from '../../lib/complaints/commands';
+import type { ComplainantKind, IntakeChannel } from '../../lib/complaints/labels';
 import { draftLetterHtml } from '../../lib/complaints/letter';
 import { formatRecordNumber } from '../../lib/records/number-format';
 import { numberPrefixes } from '../../lib/records/types';
-import { planEvent, resolveSnapshot } from '../../lib/records/workflow';
-import { loadRelated, signedContentOf } from '../../lib/records/write-path';
-import { signatureContentHash, signatureManifestHash } from '../../lib/signatures/hash';
-import type { SignatureMeaning } from '../../lib/signatures/meanings';
-import { type ComplaintEventType, complaintMachine } from '../../workflows/complaint';
 import type { ComplaintState } from '../../workflows/states';
-import type { Tx } from '../client';
-import { batches, capsuleDefects, complaints, deviations, products, recordLinks, signatures, siteClosures, stateHistory, users } from '../schema';
+import type { PlannedDeviation } from './deviations';
 import { mulberry32, randomInt } from './prng';
-import { companyName } from './scenario';
+import { type DemoScenario, companyName } from './scenario';
+import { type SeedContext, type StoryStep, iso } from './story';
 
 /*
  * Demo complaints, July to November 2026, as Brackwater would have received them: pharmacies,
@@ -32,10 +35,11 @@ import { companyName } from './scenario';
  * (21 CFR 314.81(b)(1)); and the last weeks hold complaints in every state, one serious reaction
  * with its report still due.
  *
- * Each step is checked against the complaint machine with the demo user who took it and written as
- * the write path writes it (state history, audit entries old → new, signatures), dated when it
- * happened. Numbers CMP-2026-0001... go in order of receipt through the record counter, so the next
- * live complaint continues the sequence. Lots are picked from the seeded batches by rule (the newest
+ * Each step goes through the complaint command a person would use, at the time it happened, by the
+ * demo user who took it: the intake, the assessment and its signed reportability decision, the
+ * report's date, the investigation with the batch's deviation linked, the letter written and sent,
+ * and the closing signature of a QA approver who had no other part in it. Numbers CMP-2026-0001...
+ * follow the order of receipt. Lots are picked from the scenario's batches by rule (the newest
  * shipped lot of the product made at least a week before receipt), so the data follows the scenario.
  */
 
@@ -540,282 +544,211 @@ const stories: readonly Story[] = [
   },
 ];
 
-interface Person {
-  id: number;
-  email: string;
-  name: string;
-  title: string;
-  role: 'operator' | 'supervisor' | 'qa_investigator' | 'qa_approver' | 'admin';
+type ComplaintStepKind =
+  | { kind: 'create' }
+  | { kind: 'start_assessment' }
+  | { kind: 'record_assessment' }
+  | { kind: 'skip_investigation'; reason: string }
+  | { kind: 'complete_assessment' }
+  | { kind: 'record_report_submitted'; submittedOn: string }
+  | { kind: 'record_investigation' }
+  | { kind: 'link_deviation'; deviation: string }
+  | { kind: 'complete_investigation' }
+  | { kind: 'write_response'; letter: string }
+  | { kind: 'send_response'; channel: 'email' | 'post' }
+  | { kind: 'close' };
+
+export type PlannedComplaintStep = ComplaintStepKind & { at: string; by: string };
+
+export interface PlannedComplaint {
+  key: string;
+  number: string;
+  stage: Stage;
+  /** The lot in the batch records the complaint names, or null (none, or one the site never made). */
+  lot: string | null;
+  steps: PlannedComplaintStep[];
 }
 
-const at = (day: string, time: string) => new Date(`${day}T${time}:00.000Z`);
-const scenarioLast = new Date('2026-11-27T23:00:00.000Z');
+const at = (day: string, time: string) => iso(`${day}T${time}`);
+const scenarioLast = iso('2026-11-27T23:00');
 
-/** Writes the demo complaints with their history, audit entries, signatures and links. */
-export async function seedComplaints(tx: Tx): Promise<void> {
-  const rand = mulberry32(0xc0_2026);
-  const people = new Map<string, Person>(
-    (await tx.select({ id: users.id, email: users.email, name: users.name, title: users.title, role: users.role }).from(users)).map((u) => [u.email, u]),
+/** The newest shipped lot of the product made at least a week before the complaint came in. */
+function lotFor(scenario: DemoScenario, story: Story): string {
+  const candidates = scenario.batches.filter(
+    (b) => b.productCode === story.product && b.status === 'released' && b.unitsShipped > 0 && b.manufacturedOn <= addDays(story.receivedOn, -7),
   );
-  const person = (email: string) => {
-    const p = people.get(email);
-    if (!p) throw new Error(`demo user ${email} missing`);
-    return p;
-  };
-  const productRows = new Map((await tx.select().from(products)).map((p) => [p.code, p]));
-  const defectIds = new Map((await tx.select({ id: capsuleDefects.id, code: capsuleDefects.code }).from(capsuleDefects)).map((d) => [d.code, d.id]));
-  const closures = await tx.select({ day: siteClosures.day, description: siteClosures.description }).from(siteClosures).where(eq(siteClosures.active, true));
-  const siteCalendar = makeCalendar(closures);
-  const lots = new Map<string, typeof batches.$inferSelect>();
+  // The scenario lists batches in the order they were made, which is also the order they are entered.
+  const newest = candidates.reduce<(typeof candidates)[number] | null>((best, b) => (best === null || b.manufacturedOn > best.manufacturedOn ? b : best), null);
+  if (!newest) throw new Error(`demo complaint ${story.key}: no shipped lot of ${story.product} before ${story.receivedOn}`);
+  return newest.lotNumber;
+}
 
+/** The newest deviation on the lot's filler raised before `since` and reported by `by`, to link. */
+function deviationToLink(scenario: DemoScenario, deviations: readonly PlannedDeviation[], lot: string, since: string, by: string): string | null {
+  const machineOf = new Map(scenario.batches.map((b) => [b.lotNumber, b.machineAssetTag]));
+  const machine = machineOf.get(lot);
+  const reportedAt = (d: PlannedDeviation) => d.steps.find((s) => s.event === 'submit')?.at ?? null;
+  const candidates = deviations.filter(
+    (d) => d.lot !== null && machineOf.get(d.lot) === machine && d.steps[0]!.at <= since && (reportedAt(d) ?? '9999') <= by,
+  );
+  candidates.sort((a, b) => b.steps[0]!.at.localeCompare(a.steps[0]!.at));
+  return candidates[0]?.key ?? null;
+}
+
+/** The complaint stories as dated steps by the demo users who took them. Pure and deterministic. */
+export function planDemoComplaints(scenario: DemoScenario, deviations: readonly PlannedDeviation[]): PlannedComplaint[] {
+  const rand = mulberry32(0xc0_2026);
+  const lots = new Map<string, string | null>();
   const ordered = [...stories].sort((a, b) => a.receivedOn.localeCompare(b.receivedOn));
-  for (const [index, story] of ordered.entries()) {
-    const product = productRows.get(story.product);
-    if (!product) throw new Error(`demo complaint ${story.key}: no product ${story.product}`);
-    let batch: typeof batches.$inferSelect | null = null;
+  return ordered.map((story, index) => {
+    let lot: string | null = null;
     if (story.sameLotAs) {
-      batch = lots.get(story.sameLotAs) ?? null;
-      if (!batch) throw new Error(`demo complaint ${story.key}: ${story.sameLotAs} comes later or has no lot`);
+      lot = lots.get(story.sameLotAs) ?? null;
+      if (!lot) throw new Error(`demo complaint ${story.key}: ${story.sameLotAs} comes later or has no lot`);
     } else if (!story.unknownLot) {
-      const [found] = await tx
-        .select()
-        .from(batches)
-        .where(
-          and(
-            eq(batches.productId, product.id),
-            eq(batches.status, 'released'),
-            gt(batches.unitsShipped, 0),
-            lte(batches.manufacturedOn, addDays(story.receivedOn, -7)),
-          ),
-        )
-        .orderBy(desc(batches.manufacturedOn), asc(batches.id))
-        .limit(1);
-      batch = found ?? null;
-      if (!batch) throw new Error(`demo complaint ${story.key}: no shipped lot of ${story.product} before ${story.receivedOn}`);
+      lot = lotFor(scenario, story);
     }
-    if (batch) lots.set(story.key, batch);
-
+    lots.set(story.key, lot);
     const number = formatRecordNumber(numberPrefixes.complaint, 2026, index + 1);
-    await tx.execute(
-      sql`INSERT INTO record_counters (prefix, year, last_value) VALUES (${numberPrefixes.complaint}, ${2026}, LAST_INSERT_ID(1))
-          ON DUPLICATE KEY UPDATE last_value = LAST_INSERT_ID(last_value + 1)`,
-    );
-    const [counter] = (await tx.execute(sql`SELECT LAST_INSERT_ID() AS value`)) as unknown as [{ value: number | string }[]];
-    const given = formatRecordNumber(numberPrefixes.complaint, 2026, Number(counter[0]?.value));
-    if (given !== number) throw new Error(`the complaint counter gave ${given} where the demo expects ${number}`);
-
-    const taker = person(story.takenBy);
+    const steps: PlannedComplaintStep[] = [];
     const createdAt = at(story.receivedOn, `${String(13 + randomInt(rand, 0, 3)).padStart(2, '0')}:${String(randomInt(rand, 0, 5) * 10).padStart(2, '0')}`);
-    let row: ComplaintRow = {
-      id: 0,
-      number,
-      status: 'received',
-      version: 1,
-      receivedOn: story.receivedOn,
-      channel: story.channel,
-      complainantName: story.name,
-      complainantContact: story.contact,
-      complainantKind: story.kind,
-      productId: product.id,
-      batchId: batch?.id ?? null,
-      lotAsReported: batch?.lotNumber ?? story.unknownLot ?? null,
-      lotUnknown: !batch,
-      description: story.description,
-      unitsAffected: story.units ?? null,
-      personHarmed: Boolean(story.harm),
-      harmDescription: story.harm ?? null,
-      samplesReturning: story.samples ?? false,
-      category: null,
-      defectId: null,
-      adverseEvent: null,
-      seriousAdverseEvent: null,
-      reportable: null,
-      reportKind: null,
-      reportDueOn: null,
-      reportSubmittedAt: null,
-      assessmentRationale: null,
-      reportabilityDecidedAt: null,
-      reportabilityDecidedBy: null,
-      investigationSkipReason: null,
-      retainedSamplesChecked: null,
-      retainedSamplesNote: null,
-      investigationSummary: null,
-      responseText: null,
-      responseChannel: null,
-      responseSentText: null,
-      responseSentAt: null,
-      responseSentBy: null,
-      reopenReason: null,
-      ownerId: null,
-      createdBy: taker.id,
-      dueAt: new Date(`${addBusinessDays(story.receivedOn, 30, siteCalendar)}T00:00:00.000Z`),
-      closedAt: null,
-      createdAt,
-      updatedAt: createdAt,
-    };
-    const { id: _id, ...insertValues } = row;
-    const [inserted] = await tx.insert(complaints).values(insertValues).$returningId();
-    row = { ...row, id: inserted!.id };
-    const complaintId = row.id;
-    await tx.insert(stateHistory).values({ recordType: 'complaint', recordId: complaintId, event: 'create', fromState: null, toState: 'received', userId: taker.id, comment: null, at: createdAt });
-    await writeDemoAuditAt(
-      tx,
-      { actor: taker, recordType: 'complaint', recordId: complaintId, action: 'create', changes: diffFields(null, row, ['number', 'status', ...complaintAuditFields]) },
-      createdAt,
-    );
-
     let last = createdAt;
     const step = (daysAfter: number, time: string) => {
       const t = at(addDays(story.receivedOn, daysAfter), time);
-      const when = t < last ? new Date(last.getTime() + 10 * 60_000) : t;
+      const when = t < last ? new Date(Date.parse(last) + 10 * 60_000).toISOString() : t;
       if (when > scenarioLast) throw new Error(`demo complaint ${story.key}: a step falls after the scenario`);
       last = when;
       return when;
     };
-    const edit = async (action: string, by: Person, t: Date, changes: Partial<ComplaintRow>, extra: { field: string; from: unknown; to: unknown }[] = []) => {
-      const before = row;
-      row = { ...row, ...changes, version: row.version + 1, updatedAt: t };
-      await writeDemoAuditAt(tx, { actor: by, recordType: 'complaint', recordId: complaintId, action, changes: [...diffFields(before, row, complaintAuditFields), ...extra] }, t);
-    };
-    const event = async (type: ComplaintEventType, by: Person, t: Date, reason: string | null, changes: Partial<ComplaintRow> = {}) => {
-      const snapshot = resolveSnapshot(complaintMachine, row.status, {
-        ownerId: row.ownerId,
-        assessmentRecorded: Boolean(row.category && row.adverseEvent !== null && row.reportable !== null && row.assessmentRationale),
-        qualityDefectPossible: row.category !== 'no_defect_found',
-        investigationRecorded: row.retainedSamplesChecked !== null && Boolean(row.investigationSummary),
-        responseSent: row.responseSentAt !== null,
-      });
-      const plan = planEvent(complaintMachine, snapshot, { type, actor: by });
-      if (!plan.ok) throw new Error(`demo complaint ${story.key}: ${by.email} cannot ${type} in ${row.status} (${plan.problem})`);
-      if (plan.rules.reasonRequired && !reason) throw new Error(`demo complaint ${story.key}: ${type} needs a reason`);
-      const before = row;
-      row = { ...row, ...changes, status: plan.nextState as ComplaintState, version: row.version + 1, updatedAt: t };
-      await tx.insert(stateHistory).values({ recordType: 'complaint', recordId: complaintId, event: type, fromState: before.status, toState: row.status, userId: by.id, comment: reason, at: t });
-      await writeDemoAuditAt(
-        tx,
-        { actor: by, recordType: 'complaint', recordId: complaintId, action: type, changes: diffFields(before, row, ['status', ...complaintAuditFields]), reason },
-        t,
-      );
-      if (plan.rules.signature) await insertSignature(tx, by, row, plan.rules.signature, reason, t);
-    };
+    const add = (s: ComplaintStepKind, t: string, by: string) => steps.push({ ...s, at: t, by });
+    const done = () => ({ key: story.key, number, stage: story.stage, lot, steps });
 
-    if (story.stage === 'received') {
-      await tx.update(complaints).set(finalColumns(row)).where(eq(complaints.id, complaintId));
-      continue;
-    }
-    const owner = person(story.owner ?? investigator);
-    await event('start_assessment', owner, step(1, '08:40'), null, { ownerId: owner.id });
-    if (story.category) {
-      const kind = reportKindFor[product.regulatoryClass];
-      await edit('record_assessment', owner, step(1, '10:15'), {
-        category: story.category,
-        defectId: isNonDefectCategory(story.category) ? null : (defectIds.get(story.category) ?? null),
-        adverseEvent: story.adverse ?? false,
-        seriousAdverseEvent: story.adverse ? (story.serious ?? false) : false,
-        reportable: story.reportable ?? false,
-        reportKind: story.reportable ? kind : null,
-        reportDueOn: story.reportable ? reportDueOn(kind, story.receivedOn) : null,
-        assessmentRationale: story.rationale ?? null,
-      });
-    }
-    if (story.stage === 'assessment') {
-      await tx.update(complaints).set(finalColumns(row)).where(eq(complaints.id, complaintId));
-      continue;
-    }
+    add({ kind: 'create' }, createdAt, story.takenBy);
+    if (story.stage === 'received') return done();
+    const owner = story.owner ?? investigator;
+    add({ kind: 'start_assessment' }, step(1, '08:40'), owner);
+    if (story.category) add({ kind: 'record_assessment' }, step(1, '10:15'), owner);
+    if (story.stage === 'assessment') return done();
     if (story.skip) {
-      const t = step(1, '11:30');
-      await event('skip_investigation', owner, t, story.skip, { reportabilityDecidedAt: t, reportabilityDecidedBy: owner.id, investigationSkipReason: story.skip });
+      add({ kind: 'skip_investigation', reason: story.skip }, step(1, '11:30'), owner);
     } else {
-      const t = step(1, '11:30');
-      await event('complete_assessment', owner, t, null, { reportabilityDecidedAt: t, reportabilityDecidedBy: owner.id });
+      add({ kind: 'complete_assessment' }, step(1, '11:30'), owner);
       if (story.reportable && story.reportedAfterDays !== undefined) {
-        const submitted = addDays(story.receivedOn, story.reportedAfterDays);
-        await edit('record_report_submitted', owner, step(story.reportedAfterDays, '16:00'), { reportSubmittedAt: new Date(`${submitted}T00:00:00.000Z`) });
+        add({ kind: 'record_report_submitted', submittedOn: addDays(story.receivedOn, story.reportedAfterDays) }, step(story.reportedAfterDays, '16:00'), owner);
       }
-      if (story.retained) {
-        await edit('record_investigation', owner, step(4, '14:20'), {
-          retainedSamplesChecked: story.retained.checked,
-          retainedSamplesNote: story.retained.note,
-          investigationSummary: story.summary ?? null,
-        });
+      if (story.retained) add({ kind: 'record_investigation' }, step(4, '14:20'), owner);
+      if (story.linkDeviation && lot) {
+        const since = last;
+        const t = step(4, '15:00');
+        const deviation = deviationToLink(scenario, deviations, lot, since, t);
+        if (deviation) add({ kind: 'link_deviation', deviation }, t, owner);
       }
-      if (story.linkDeviation && batch) {
-        const [dev] = await tx
-          .select({ id: deviations.id, number: deviations.number })
-          .from(deviations)
-          .innerJoin(batches, eq(batches.id, deviations.batchId))
-          .where(and(eq(batches.machineId, batch.machineId ?? -1), lte(deviations.createdAt, last)))
-          .orderBy(desc(deviations.createdAt))
-          .limit(1);
-        if (dev?.number) {
-          const t = step(4, '15:00');
-          await tx.insert(recordLinks).values({ fromType: 'complaint', fromId: complaintId, toType: 'deviation', toId: dev.id, relation: 'related_deviation', createdBy: owner.id, createdAt: t });
-          await edit('link_deviation', owner, t, {}, [{ field: 'linked deviation', from: null, to: dev.number }]);
-        }
-      }
-      if (story.stage === 'investigation') {
-        await tx.update(complaints).set(finalColumns(row)).where(eq(complaints.id, complaintId));
-        continue;
-      }
-      await event('complete_investigation', owner, step(5, '11:00'), null);
+      if (story.stage === 'investigation') return done();
+      add({ kind: 'complete_investigation' }, step(5, '11:00'), owner);
     }
     if (story.answer) {
+      const person = scenario.users.find((u) => u.email === owner)!;
+      const product = scenario.products.find((p) => p.code === story.product)!;
       const letter = draftLetterHtml({
         siteName: companyName,
         number,
         complainantName: story.name,
         receivedOn: story.receivedOn,
         product: `${product.name} ${product.strength}`,
-        lot: row.lotAsReported,
+        lot: lot ?? story.unknownLot ?? null,
         reported: story.description,
         found: story.answer.text,
-        signerName: owner.name,
-        signerTitle: owner.title || roleLabels[owner.role],
+        signerName: person.name,
+        signerTitle: person.title || roleLabels[person.role],
       }).replace(/<p>\[Say[^<]*\]<\/p>\n?/, '');
-      await edit('write_response', owner, step(6, '10:00'), { responseText: letter });
-      const sentAt = step(6, '15:30');
-      await edit('send_response', owner, sentAt, { responseChannel: story.answer.channel, responseSentText: letter, responseSentAt: sentAt, responseSentBy: owner.id });
-      if (story.stage === 'closed') {
-        const t = step(7, '09:30');
-        await event('close', person(approver), t, null, { closedAt: t });
-      }
+      add({ kind: 'write_response', letter }, step(6, '10:00'), owner);
+      add({ kind: 'send_response', channel: story.answer.channel }, step(6, '15:30'), owner);
+      if (story.stage === 'closed') add({ kind: 'close' }, step(7, '09:30'), approver);
     }
-    await tx.update(complaints).set(finalColumns(row)).where(eq(complaints.id, complaintId));
+    return done();
+  });
+}
+
+function storyOf(key: string): Story {
+  const story = stories.find((s) => s.key === key);
+  if (!story) throw new Error(`no demo complaint ${key}`);
+  return story;
+}
+
+function runStep(c: PlannedComplaint, step: PlannedComplaintStep, ctx: SeedContext): Promise<unknown> {
+  const key = `complaint:${c.key}`;
+  const story = storyOf(c.key);
+  const by = ctx.person(step.by);
+  const moved = (outcome: { record: { id: number; version: number } }) => ctx.track(key, outcome.record);
+  const current = () => {
+    const r = ctx.record(key);
+    return { id: r.id, version: r.version };
+  };
+  switch (step.kind) {
+    case 'create':
+      return createComplaint(by, {
+        receivedOn: story.receivedOn,
+        channel: story.channel,
+        complainantName: story.name,
+        complainantContact: story.contact,
+        complainantKind: story.kind,
+        productId: ctx.id(ctx.productIds, story.product, 'product'),
+        lot: c.lot ?? story.unknownLot,
+        description: story.description,
+        unitsAffected: story.units,
+        personHarmed: Boolean(story.harm),
+        harmDescription: story.harm,
+        samplesReturning: story.samples ?? false,
+      }).then((outcome) => {
+        moved(outcome);
+        if (outcome.record.number !== c.number) throw new Error(`the product gave ${outcome.record.number} where the plan expects ${c.number}`);
+        ctx.numbers.set(key, outcome.record.number);
+      });
+    case 'start_assessment':
+      return startAssessment(by, current()).then(moved);
+    case 'record_assessment':
+      return saveAssessment(by, {
+        ...current(),
+        category: story.category!,
+        adverseEvent: story.adverse ?? false,
+        seriousAdverseEvent: story.adverse ? (story.serious ?? false) : undefined,
+        reportable: story.reportable ?? false,
+        assessmentRationale: story.rationale!,
+      }).then(moved);
+    case 'skip_investigation':
+      return ctx.signer(step.by).then((signer) => skipInvestigation(by, { ...current(), reason: step.reason }, signer)).then(moved);
+    case 'complete_assessment':
+      return ctx.signer(step.by).then((signer) => completeAssessment(by, current(), signer)).then(moved);
+    case 'record_report_submitted':
+      return recordReportSubmitted(by, { ...current(), submittedOn: step.submittedOn }).then(moved);
+    case 'record_investigation':
+      return saveInvestigation(by, {
+        ...current(),
+        retainedSamplesChecked: story.retained!.checked,
+        retainedSamplesNote: story.retained!.note,
+        investigationSummary: story.summary,
+      }).then(moved);
+    case 'link_deviation':
+      return linkRecord(by, { ...current(), target: 'deviation', reference: ctx.number(`deviation:${step.deviation}`) }).then(moved);
+    case 'complete_investigation':
+      return ctx.signer(step.by).then((signer) => completeInvestigation(by, current(), signer)).then(moved);
+    case 'write_response':
+      return saveResponseDraft(by, { ...current(), letter: step.letter }).then(moved);
+    case 'send_response':
+      return sendResponse(by, { ...current(), channel: step.channel }).then(moved);
+    case 'close':
+      return ctx.signer(step.by).then((signer) => closeComplaint(by, current(), signer)).then(moved);
   }
 }
 
-function finalColumns(row: ComplaintRow) {
-  const { id: _id, number: _number, createdAt: _createdAt, ...rest } = row;
-  return rest;
-}
-
-async function insertSignature(tx: Tx, signer: Person, row: ComplaintRow, meaning: SignatureMeaning, reason: string | null, t: Date): Promise<void> {
-  const contentHash = signatureContentHash('complaint', row.id, row.version, signedContentOf(complaintKind, meaning, row, await loadRelated(complaintKind, tx, row))!);
-  const manifest = {
-    recordType: 'complaint',
-    recordId: row.id,
-    recordVersion: row.version,
-    userId: signer.id,
-    printedName: signer.name,
-    printedTitle: signer.title || roleLabels[signer.role],
-    meaning,
-    signedAt: sqlUtc(t),
-    contentHash,
-  };
-  const [inserted] = await tx
-    .insert(signatures)
-    .values({ ...manifest, signatureHash: signatureManifestHash(manifest) })
-    .$returningId();
-  await writeDemoAuditAt(
-    tx,
-    {
-      actor: { id: signer.id, name: signer.name },
-      recordType: 'complaint',
-      recordId: row.id,
-      action: 'signed',
-      changes: [{ field: 'signature', from: null, to: { id: inserted!.id, meaning, recordVersion: row.version, contentHash } }],
-      reason,
-    },
-    t,
+export function complaintSteps(planned: readonly PlannedComplaint[]): StoryStep[] {
+  return planned.flatMap((c) =>
+    c.steps.map((step) => ({
+      at: step.at,
+      what: `complaint ${c.key}: ${step.kind.replace(/_/g, ' ')} by ${step.by}`,
+      run: async (ctx: SeedContext) => {
+        await runStep(c, step, ctx);
+      },
+    })),
   );
 }

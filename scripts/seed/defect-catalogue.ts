@@ -1,4 +1,4 @@
-import type { classifications } from '../schema';
+import type { classifications } from '../../db/schema';
 
 /*
  * The capsule defect catalogue shipped with the demo. Default classifications and severities are

@@ -1,11 +1,11 @@
-import { inArray } from 'drizzle-orm';
-import type { Tx } from '../client';
-import { batches, users } from '../schema';
+import { assertCan } from '../../lib/auth/permissions';
+import { writeTransaction } from '../../lib/records/transaction';
 import { buildWeightCheckRow, insertWeightCheck } from '../../lib/weight-checks/commands';
 import { getWeightBatch } from '../../lib/weight-checks/queries';
 import { type CapsuleSize, type WeightMethod, defaultMethod, xBarRChart } from '../../lib/weight';
 import { type Prng, mulberry32 } from './prng';
 import type { DemoScenario } from './scenario';
+import type { StoryStep } from './story';
 
 /*
  * Demo weight checks: the batches of the last three weeks of the scenario get a check about every
@@ -102,31 +102,30 @@ export function plannedChart(planned: readonly PlannedCheck[], lotNumber: string
 }
 
 /*
- * Each demo check is audited as recorded by the person who weighed it, not as master data the
- * administrator created, so it carries its own action.
+ * Each check is recorded by the person who weighed it, at the time they weighed it, with the
+ * building blocks of recordWeightCheck (lib/weight-checks/commands.ts): the same evaluation, row
+ * and audit entry. recordWeightCheck itself takes only batches still in process or on hold, and the
+ * demo's batches are entered with the status they end the scenario in (there is no batch release
+ * command yet), so most of these batches read as released already when their checks are replayed.
  */
-export const weightSeedAuditAction = 'record (demo data)';
-
-export async function seedWeightChecks(tx: Tx, scenario: DemoScenario): Promise<void> {
-  const planned = planDemoWeightChecks(scenario);
-  const lots = [...new Set(planned.map((c) => c.lotNumber))];
-  if (lots.length === 0) return;
-  const batchRows = await tx.select({ id: batches.id, lotNumber: batches.lotNumber }).from(batches).where(inArray(batches.lotNumber, lots));
-  const batchIds = new Map(batchRows.map((b) => [b.lotNumber, b.id]));
-  const people = await tx.select({ id: users.id, name: users.name, role: users.role, email: users.email }).from(users).where(inArray(users.email, [...recorders]));
-  const byEmail = new Map(people.map((u) => [u.email, u]));
-  for (const lot of lots) {
-    const batch = await getWeightBatch(batchIds.get(lot)!, tx);
-    if (!batch) throw new Error(`demo batch ${lot} is missing`);
-    for (const c of planned.filter((x) => x.lotNumber === lot)) {
-      const person = byEmail.get(c.recordedByEmail)!;
-      const { values } = buildWeightCheckRow(
-        batch,
-        { batchId: batch.id, method: c.method, massMode: c.massMode, shellMassMg: c.shellMassMg, massesMg: c.massesMg, assayPercent: null, targetPercent: null, note: c.note },
-        person.id,
-        c.checkedAt,
-      );
-      await insertWeightCheck(tx, { id: person.id, name: person.name, role: person.role }, values, weightSeedAuditAction);
-    }
-  }
+export function weightCheckSteps(scenario: DemoScenario): StoryStep[] {
+  return planDemoWeightChecks(scenario).map((c) => ({
+    at: c.checkedAt.toISOString(),
+    what: `weight check on ${c.lotNumber} by ${c.recordedByEmail}`,
+    async run(ctx) {
+      const person = ctx.person(c.recordedByEmail);
+      assertCan(person, 'weight_check.record');
+      await writeTransaction(async (tx) => {
+        const batch = await getWeightBatch(ctx.id(ctx.batchIds, c.lotNumber, 'batch'), tx);
+        if (!batch) throw new Error(`demo batch ${c.lotNumber} is missing`);
+        const { values } = buildWeightCheckRow(
+          batch,
+          { batchId: batch.id, method: c.method, massMode: c.massMode, shellMassMg: c.shellMassMg, massesMg: c.massesMg, assayPercent: null, targetPercent: null, note: c.note },
+          person.id,
+          c.checkedAt,
+        );
+        await insertWeightCheck(tx, person, values);
+      });
+    },
+  }));
 }
