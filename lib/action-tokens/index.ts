@@ -1,6 +1,6 @@
 import 'server-only';
 import { createHash, randomBytes } from 'node:crypto';
-import { and, eq, gt, isNull } from 'drizzle-orm';
+import { and, eq, gt, inArray, isNull } from 'drizzle-orm';
 import type { DbOrTx } from '../../db/client';
 import { actionTokens, settings } from '../../db/schema';
 import type { RecordType } from '../records/types';
@@ -54,19 +54,30 @@ export async function issueActionToken(
   const token = randomBytes(tokenBytes).toString('base64url');
   const days = await getLinkDays(tx);
   const expiresAt = new Date(now.getTime() + days * 86_400_000);
-  await tx
-    .update(actionTokens)
-    .set({ revokedAt: now })
+  // Earlier unused links for the same binding, found by a plain read and revoked by primary key.
+  // An UPDATE with this WHERE would take gap locks on the record index when nothing matches (the
+  // usual case), and two transactions issuing links for neighbouring records then deadlock on each
+  // other's INSERT. Issuers of the same binding are already serialised by the record's row lock,
+  // which the write path takes before anything else in the transaction.
+  const earlier = await tx
+    .select({ id: actionTokens.id })
+    .from(actionTokens)
     .where(
       and(
-        eq(actionTokens.userId, binding.userId),
         eq(actionTokens.recordType, binding.recordType),
         eq(actionTokens.recordId, binding.recordId),
+        eq(actionTokens.userId, binding.userId),
         eq(actionTokens.action, binding.action),
         isNull(actionTokens.usedAt),
         isNull(actionTokens.revokedAt),
       ),
     );
+  if (earlier.length > 0) {
+    await tx
+      .update(actionTokens)
+      .set({ revokedAt: now })
+      .where(and(inArray(actionTokens.id, earlier.map((t) => t.id)), isNull(actionTokens.usedAt), isNull(actionTokens.revokedAt)));
+  }
   const [inserted] = await tx.insert(actionTokens).values({ ...binding, tokenHash: hashToken(token), expiresAt }).$returningId();
   return { id: inserted!.id, token, expiresAt };
 }

@@ -68,4 +68,21 @@ describe('action tokens', () => {
     expect(await checkActionToken(db, first.token, reviewer.id, versionIs(4), now)).toMatchObject({ ok: false, problem: 'revoked' });
     expect((await checkActionToken(db, second.token, reviewer.id, versionIs(4), now)).ok).toBe(true);
   });
+
+  it('issues links for several records at the same moment without the database aborting any of them', async () => {
+    // Several CAPAs entering their effectiveness check together each mail the same approvers. Each
+    // issue runs in its own plain transaction here (no retry), the way a deadlock would surface.
+    const reviewer = await makeUser('qa_approver');
+    const now = new Date('2030-04-01T08:00:00Z');
+    const outcomes = await Promise.allSettled(
+      Array.from({ length: 12 }, () => binding(reviewer.id)).map((b) =>
+        db.transaction(async (tx) => {
+          await issueActionToken(tx, b, now);
+          await issueActionToken(tx, { ...b, userId: reviewer.id }, now);
+        }),
+      ),
+    );
+    const failures = outcomes.filter((o) => o.status === 'rejected').map((o) => String((o as PromiseRejectedResult).reason?.cause?.code ?? o));
+    expect(failures).toEqual([]);
+  });
 });

@@ -1,4 +1,4 @@
-import { and, eq, like } from 'drizzle-orm';
+import { and, eq, like, lte } from 'drizzle-orm';
 import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '@/db/client';
 import { capas, recordLinks, signatures } from '@/db/schema';
@@ -6,12 +6,16 @@ import { getCapaDetail } from '@/lib/capa/detail';
 import { capaKind } from '@/lib/capa/kind';
 import { loadRelated, signedContentOf } from '@/lib/records/write-path';
 import { listSignatures } from '@/lib/signatures';
+import { scenarioEnd } from '@/scripts/seed/scenario';
 import { capaStates } from '@/workflows/states';
 
 /*
  * The demo CAPAs as seeded: every state present, each linked to the deviation it came from, and the
  * signatures still matching what was signed (21 CFR 11.70). The seed numbers them CAPA-2026-0001...
+ * Other files in this run add CAPAs of their own today; the seed's are dated inside its scenario.
  */
+
+const seededBy = lte(capas.createdAt, new Date(`${scenarioEnd}T23:59:59.999Z`));
 
 afterAll(closeDb);
 
@@ -26,7 +30,7 @@ describe('demo CAPAs', () => {
   });
 
   it('show the recurrence evidence of the CAPAs in the effectiveness check, and signatures that still match', async () => {
-    const inCheck = await db.select().from(capas).where(eq(capas.status, 'effectiveness_check'));
+    const inCheck = await db.select().from(capas).where(and(eq(capas.status, 'effectiveness_check'), seededBy));
     expect(inCheck.length).toBeGreaterThanOrEqual(1);
     const approver = { id: 0, name: 'Reader', role: 'qa_approver' as const };
     for (const c of inCheck) {
@@ -34,7 +38,7 @@ describe('demo CAPAs', () => {
       expect(detail.recurrence?.since).not.toBeNull();
       expect(detail.actions.every((a) => a.completedAt !== null)).toBe(true);
     }
-    const closed = await db.select().from(capas).where(eq(capas.status, 'closed_effective'));
+    const closed = await db.select().from(capas).where(and(eq(capas.status, 'closed_effective'), seededBy));
     for (const c of closed) {
       const detail = await getCapaDetail(c.id, approver);
       // A CAPA closed as effective met its recurrence criterion when it was decided (ICH Q10 §3.2.2).
