@@ -2,7 +2,7 @@ import 'server-only';
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { db, type DbOrTx } from '../../db/client';
-import { batches, capsuleDefects, deviationBatches, fillingRings, machines, products, users } from '../../db/schema';
+import { batches, capsuleDefects, fillingRings, machines, products, users } from '../../db/schema';
 import { can } from '../auth/permissions';
 import type { AllowedEvent } from '../records/workflow';
 import { type BlockedEvent, type RecordAbilities, type RecordActor, type SectionOf, abilitiesOf } from '../records/kind';
@@ -24,7 +24,7 @@ import {
   submitDeviation,
   submitForApproval,
 } from './commands';
-import { type DeviationDto, deviationKind } from './kind';
+import { type DeviationDto, type HeldBatchFact, deviationKind } from './kind';
 import type { Classification, Disposition } from './labels';
 
 /*
@@ -33,16 +33,8 @@ import type { Classification, Disposition } from './labels';
  * (history, signatures, and the audit trail for the roles that may read it).
  */
 
-export interface HeldBatchDto {
-  batchId: number;
-  lotNumber: string;
-  batchStatus: (typeof batches.$inferSelect)['status'];
-  onHold: boolean;
-  recommendedDisposition: Disposition | null;
-  disposition: Disposition | null;
-  dispositionNote: string | null;
-  samplingPlan: string | null;
-}
+/** A batch the deviation holds or held, with its disposition: the kind's fact as the page shows it. */
+export type HeldBatchDto = HeldBatchFact;
 
 export interface DeviationDefectDto {
   id: number;
@@ -95,7 +87,7 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
   const row = await getVisibleRow(dbOrTx, deviationKind, id, viewer);
   const facts = await loadRelated(deviationKind, dbOrTx, row);
 
-  const [defect, product, batch, machine, ring, held, raisedByName, ownerName, investigatorName, history, signatures, audit] =
+  const [defect, product, batch, machine, ring, raisedByName, ownerName, investigatorName, history, signatures, audit] =
     await Promise.all([
       row.defectId === null
         ? null
@@ -139,21 +131,6 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
             .from(fillingRings)
             .where(eq(fillingRings.id, row.ringId))
             .then((r) => r[0] ?? null),
-      dbOrTx
-        .select({
-          batchId: deviationBatches.batchId,
-          lotNumber: batches.lotNumber,
-          batchStatus: batches.status,
-          onHold: deviationBatches.onHold,
-          recommendedDisposition: deviationBatches.recommendedDisposition,
-          disposition: deviationBatches.disposition,
-          dispositionNote: deviationBatches.dispositionNote,
-          samplingPlan: deviationBatches.samplingPlan,
-        })
-        .from(deviationBatches)
-        .innerJoin(batches, eq(batches.id, deviationBatches.batchId))
-        .where(and(eq(deviationBatches.deviationId, row.id)))
-        .orderBy(asc(batches.lotNumber)),
       userName(dbOrTx, row.raisedBy),
       userName(dbOrTx, row.ownerId),
       userName(dbOrTx, row.investigatorId),
@@ -172,7 +149,8 @@ export async function getDeviationDetail(id: number, viewer: RecordActor, dbOrTx
     raisedByName: raisedByName ?? 'Unknown user',
     ownerName,
     investigatorName,
-    heldBatches: held,
+    // The same rows the rules read (the kind's facts), shown by lot number.
+    heldBatches: [...facts.held].sort((a, b) => a.lotNumber.localeCompare(b.lotNumber)),
     ...abilitiesOf(deviationKind, viewer, row, facts),
     history,
     signatures,

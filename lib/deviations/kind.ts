@@ -9,7 +9,7 @@ import { batchKind } from '../master-data/batch-kind';
 import { type EvidenceDigest, listEvidenceDigests } from '../records/facts';
 import { type RecordActor, defineRecordKind, independentPeople } from '../records/kind';
 import { writeConsequence } from '../records/write-path';
-import { type Classification, classificationLabels, deviationEventLabels, deviationStateLabels } from './labels';
+import { type Classification, type Disposition, classificationLabels, deviationEventLabels, deviationStateLabels } from './labels';
 
 /*
  * Deviations on the write path: who sees one (a draft, and a discarded draft, are their author's
@@ -159,9 +159,10 @@ export const deviationAuditFields = [
 export interface HeldBatchFact {
   batchId: number;
   lotNumber: string;
+  batchStatus: (typeof batches.$inferSelect)['status'];
   onHold: boolean;
-  recommendedDisposition: string | null;
-  disposition: string | null;
+  recommendedDisposition: Disposition | null;
+  disposition: Disposition | null;
   dispositionNote: string | null;
   samplingPlan: string | null;
 }
@@ -178,6 +179,7 @@ async function deviationFacts(dbOrTx: Parameters<typeof listEvidenceDigests>[0],
       .select({
         batchId: deviationBatches.batchId,
         lotNumber: batches.lotNumber,
+        batchStatus: batches.status,
         onHold: deviationBatches.onHold,
         recommendedDisposition: deviationBatches.recommendedDisposition,
         disposition: deviationBatches.disposition,

@@ -1,5 +1,5 @@
 import 'server-only';
-import { and, desc, eq } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import type { DbOrTx } from '../../db/client';
 import { auditEntries, stateHistory, users } from '../../db/schema';
 import type { FieldChange } from '../audit/hash';
@@ -65,17 +65,22 @@ export interface AuditEntryDto {
   reason: string | null;
 }
 
+/**
+ * A record's audit entries, newest first (or oldest first), at most `limit`. `recordId` may list
+ * several ids when a record was audited under an earlier id (a site closure before closures had ids).
+ */
 export async function listAuditTrail(
   dbOrTx: DbOrTx,
   recordType: RecordType,
-  recordId: number,
-  limit = 200,
+  recordId: number | readonly number[],
+  { limit = 200, oldestFirst = false }: { limit?: number; oldestFirst?: boolean } = {},
 ): Promise<AuditEntryDto[]> {
+  const ids = typeof recordId === 'number' ? [recordId] : [...recordId];
   const rows = await dbOrTx
     .select()
     .from(auditEntries)
-    .where(and(eq(auditEntries.recordType, recordType), eq(auditEntries.recordId, recordId)))
-    .orderBy(desc(auditEntries.id))
+    .where(and(eq(auditEntries.recordType, recordType), ids.length === 1 ? eq(auditEntries.recordId, ids[0]!) : inArray(auditEntries.recordId, ids)))
+    .orderBy(oldestFirst ? asc(auditEntries.id) : desc(auditEntries.id))
     .limit(limit);
   return rows.map((r) => ({
     id: r.id,

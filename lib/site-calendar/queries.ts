@@ -1,8 +1,8 @@
 import 'server-only';
 import { and, asc, eq, gte, inArray, lte } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { auditEntries, settings, siteClosures, users } from '../../db/schema';
-import type { FieldChange } from '../audit';
+import { settings, siteClosures, users } from '../../db/schema';
+import { type AuditEntryDto, listAuditTrail } from '../records/trail';
 import { closureRecordIdOf } from '../clocks/closure-id';
 import { addDays, type IsoDate, todayIn } from '../clocks/dates';
 import { type BusinessCalendar, makeCalendar } from '../clocks/business-days';
@@ -41,36 +41,14 @@ export async function listSiteClosures(
     .orderBy(asc(siteClosures.day));
 }
 
-export interface ClosureAuditEntryDto {
-  id: number;
-  /** UTC, "YYYY-MM-DD HH:MM:SS.mmm" exactly as recorded. */
-  at: string;
-  userName: string;
-  action: string;
-  changes: FieldChange[];
-  reason: string | null;
-}
-
 /**
  * A closure's audit trail, oldest first: the entries naming its id, and those written before
  * closures had ids, which name its day as a number (lib/clocks/closure-id.ts).
  */
-export async function listSiteClosureTrail(day: IsoDate, database: DbOrTx = db): Promise<ClosureAuditEntryDto[]> {
+export async function listSiteClosureTrail(day: IsoDate, database: DbOrTx = db): Promise<AuditEntryDto[]> {
   const [closure] = await database.select({ id: siteClosures.id }).from(siteClosures).where(eq(siteClosures.day, day));
   if (!closure) return [];
-  const rows = await database
-    .select({
-      id: auditEntries.id,
-      at: auditEntries.at,
-      userName: auditEntries.userName,
-      action: auditEntries.action,
-      changes: auditEntries.changes,
-      reason: auditEntries.reason,
-    })
-    .from(auditEntries)
-    .where(and(eq(auditEntries.recordType, 'site_closure'), inArray(auditEntries.recordId, [closure.id, closureRecordIdOf(day)])))
-    .orderBy(asc(auditEntries.id));
-  return rows.map((r) => ({ ...r, changes: JSON.parse(r.changes) as FieldChange[] }));
+  return listAuditTrail(database, 'site_closure', [closure.id, closureRecordIdOf(day)], { oldestFirst: true, limit: 1000 });
 }
 
 /**

@@ -1,8 +1,9 @@
 import 'server-only';
 import { and, asc, count, desc, eq, gt } from 'drizzle-orm';
 import { db, type DbOrTx } from '../../db/client';
-import { auditEntries, users } from '../../db/schema';
+import { users } from '../../db/schema';
 import type { Role } from '../auth/roles';
+import { type AuditEntryDto, listAuditTrail } from '../records/trail';
 
 /* Reads for user administration. DTOs only: the password hash never leaves this module. */
 
@@ -103,30 +104,7 @@ export async function getUserOverview(now = new Date(), database: DbOrTx = db): 
   return { active: active?.n ?? 0, lockedNow: locked?.n ?? 0 };
 }
 
-export interface AuditEntryDto {
-  id: number;
-  /** UTC, "YYYY-MM-DD HH:MM:SS.mmm" exactly as recorded. */
-  at: string;
-  userName: string;
-  action: string;
-  changes: { field: string; from: unknown; to: unknown }[];
-  reason: string | null;
-}
-
 /** The newest audit entries about one user account (sign-ins, lock-outs and administration). */
 export async function listUserAuditTrail(userId: number, limit = 25, database: DbOrTx = db): Promise<AuditEntryDto[]> {
-  const rows = await database
-    .select({
-      id: auditEntries.id,
-      at: auditEntries.at,
-      userName: auditEntries.userName,
-      action: auditEntries.action,
-      changes: auditEntries.changes,
-      reason: auditEntries.reason,
-    })
-    .from(auditEntries)
-    .where(and(eq(auditEntries.recordType, 'user'), eq(auditEntries.recordId, userId)))
-    .orderBy(desc(auditEntries.id))
-    .limit(limit);
-  return rows.map((r) => ({ ...r, changes: JSON.parse(r.changes) as AuditEntryDto['changes'] }));
+  return listAuditTrail(database, 'user', userId, { limit });
 }

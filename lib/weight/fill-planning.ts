@@ -1,9 +1,9 @@
 /*
  * Fill-weight planning: how much powder a capsule size holds at the powder's tapped bulk density.
  * Nominal body-fill volumes (mL) from the teaching table "Hard Gelatin Capsules" of the UNC
- * Eshelman School of Pharmacy pharmaceutics labs (pharmlabs.unc.edu, capsules), the same table the
- * demo seed cites in scripts/seed/capsule-volumes.ts. Shell makers publish slightly different figures
- * per size; sizes are the same for gelatin and HPMC shells.
+ * Eshelman School of Pharmacy pharmaceutics labs (pharmlabs.unc.edu/labs/capsules/gelatin.htm):
+ * 000 1.37, 00 0.95, 0 0.68, 1 0.50, 2 0.37, 3 0.30, 4 0.20, 5 0.13. Shell makers publish slightly
+ * different figures per size; sizes are the same for gelatin and HPMC shells.
  */
 
 /** Where the nominal volumes come from, for the screen to cite beside the planning line. */

@@ -2,11 +2,10 @@ import { readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { batchStatuses, classifications, ringConditions } from '@/db/schema';
-import { capsuleVolumeMl } from '@/scripts/seed/capsule-volumes';
 import { demoPassword, demoUsers } from '@/scripts/seed/demo-users';
 import { mulberry32 } from '@/scripts/seed/prng';
 import { buildDemoScenario, scenarioEnd, scenarioStart } from '@/scripts/seed/scenario';
-import { sanityCheckTarget } from '@/lib/weight/fill-planning';
+import { capsuleVolumeMl, sanityCheckTarget } from '@/lib/weight/fill-planning';
 
 const scenario = buildDemoScenario();
 const byCode = <T extends { code: string }>(rows: readonly T[], code: string) => rows.find((r) => r.code === code)!;
@@ -144,7 +143,7 @@ describe('products', () => {
   });
 
   it('have fill targets a powder can physically reach in the capsule (apparent density 0.3-1.2 g/mL)', () => {
-    // Capsule volumes: UNC Eshelman School of Pharmacy teaching table (scripts/seed/capsule-volumes.ts).
+    // Capsule volumes: UNC Eshelman School of Pharmacy teaching table (lib/weight/fill-planning.ts).
     // 0.3-1.2 g/mL spans the tapped densities of common capsule powders (common practice).
     for (const p of scenario.products) {
       const density = p.targetFillMg / (capsuleVolumeMl[p.capsuleSize] * 1000);

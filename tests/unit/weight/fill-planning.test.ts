@@ -1,5 +1,4 @@
 import { describe, expect, it } from 'vitest';
-import { capsuleVolumeMl as seedVolumes } from '@/scripts/seed/capsule-volumes';
 import { capsuleSizeOrder, capsuleVolumeMl, expectedFillMg, sanityCheckTarget } from '@/lib/weight/fill-planning';
 
 /*
@@ -14,8 +13,9 @@ describe('fill-weight planning', () => {
     expect([...volumes].sort((a, b) => b - a)).toEqual(volumes);
   });
 
-  it('agrees with the table the demo seed cites', () => {
-    expect(capsuleVolumeMl).toEqual(seedVolumes);
+  it('holds the volumes of the UNC teaching table (000 1.37 mL … 5 0.13 mL)', () => {
+    // pharmlabs.unc.edu/labs/capsules/gelatin.htm, "Hard Gelatin Capsules", volume column.
+    expect(capsuleVolumeMl).toEqual({ '000': 1.37, '00': 0.95, '0': 0.68, '1': 0.5, '2': 0.37, '3': 0.3, '4': 0.2, '5': 0.13 });
   });
 
   it('expected fill = volume × tapped density (size 0: 0.68 mL × 0.8 g/mL = 544 mg)', () => {
