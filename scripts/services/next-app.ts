@@ -116,8 +116,18 @@ export interface AppProcessOptions {
   echo: boolean;
 }
 
+/*
+ * Idle keep-alive connections stay open two minutes (Node's default is 5 s). Clients that pool
+ * sockets without reading the server's Keep-Alive hint (Playwright's request context; many load
+ * balancers, whose idle timeout is 60 s) otherwise reuse a socket at the moment the server closes
+ * it and get ECONNRESET (microsoft/playwright#42698). The server outliving the client's idle time
+ * makes the client the side that closes.
+ */
+const keepAliveMs = 120_000;
+
 export function startNextApp(opts: AppProcessOptions): ServiceProcess {
-  return spawnService('app', process.execPath, [nextBin, 'start', '-H', '127.0.0.1', '-p', String(opts.port)], {
+  const args = [nextBin, 'start', '-H', '127.0.0.1', '-p', String(opts.port), '--keepAliveTimeout', String(keepAliveMs)];
+  return spawnService('app', process.execPath, args, {
     cwd: opts.root,
     env: opts.env,
     logFile: path.join(opts.logDir, 'app.log'),
