@@ -243,7 +243,12 @@ export const capaKind = defineRecordKind({
       holders: { ...ownerOnly, refusal: 'Only the owner of this CAPA asks for its plan to be approved.' },
       bumpsVersion: false,
     },
-    owner: { label: 'Reassigning the owner', permission: 'capa.reassign', states: openStates },
+    owner: {
+      label: 'Reassigning the owner',
+      permission: 'capa.reassign',
+      states: openStates,
+      ownScope: { of: (row) => [row.ownerId], refusal: 'Only the owner of this CAPA or a QA approver hands it to someone else.' },
+    },
     // 21 CFR 820.100(a)(7): the activities and their results are documented by those who did them.
     completion: {
       label: 'Completing an action',

@@ -398,12 +398,13 @@ export function checkSection<K extends AnyRecordKind>(
       const reason = typeof section.stateRefusal === 'function' ? section.stateRefusal(row) : section.stateRefusal;
       return { ok: false, status: 409, scope: 'state', reason };
     }
-    const where = section.states.map((s) => stateLabel(kind, s).toLowerCase()).join(' or ');
+    // "Editing the plan is possible only at “Planning”; this CAPA is at “Effectiveness check” now."
+    const where = section.states.map((s) => `“${stateLabel(kind, s)}”`).join(' or ');
     return {
       ok: false,
       status: 409,
       scope: 'state',
-      reason: `${section.label} is possible only while the ${kind.noun} is ${where}; it is ${stateLabel(kind, state).toLowerCase()} now.`,
+      reason: `${section.label} is possible only at ${where}; this ${kind.noun} is at “${stateLabel(kind, state)}” now.`,
     };
   }
   const own = section.ownScope ? section.ownScope.of(row, related, params) : ownerIdsOf(kind, row);
