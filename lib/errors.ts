@@ -52,3 +52,8 @@ export function isDomainError(err: unknown): err is DomainError {
 export function fieldError(field: string, message: string): ValidationError {
   return new ValidationError(message, { [field]: [message] });
 }
+
+/** Refuses, beside the field, a change that would leave the value as it is (nothing to record). */
+export function assertChanged<T>(field: string, current: T, next: T, message: string): void {
+  if (current === next) throw fieldError(field, message);
+}

@@ -3,7 +3,7 @@ import { eq } from 'drizzle-orm';
 import type { Tx } from '../../db/client';
 import { capaActions, complaints, deviations, recordLinks } from '../../db/schema';
 import { type FieldChange, diffFields } from '../audit';
-import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError, fieldError } from '../errors';
+import { ConflictError, InvalidTransitionError, NotFoundError, ValidationError, assertChanged, fieldError } from '../errors';
 import { assertCandidate } from '../users/candidates';
 import { activeUsers } from '../mail/record-notice';
 import type { RecordActor } from '../records/kind';
@@ -179,9 +179,7 @@ export async function reassignOwner(actor: RecordActor, raw: ReassignOwnerInput)
     action: 'reassign_owner',
     reason: input.reason,
     async apply(before, { tx }) {
-      if (input.ownerId === before.ownerId) {
-        throw fieldError('ownerId', 'This person owns the CAPA already.');
-      }
+      assertChanged('ownerId', before.ownerId, input.ownerId, 'This person owns the CAPA already.');
       await assertOwnerCandidate(tx, input.ownerId);
       const next = { ...before, ownerId: input.ownerId, version: before.version + 1 };
       await capaNotice(tx, next, await activeUsers(tx, [input.ownerId]), actor, {

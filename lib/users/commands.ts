@@ -7,7 +7,7 @@ import { hashPassword } from '../auth/passwords';
 import { assertCan } from '../auth/permissions';
 import { roleLabels } from '../auth/roles';
 import { now } from '../clock';
-import { NotFoundError, ValidationError, fieldError } from '../errors';
+import { NotFoundError, ValidationError, assertChanged } from '../errors';
 import type { RecordActor } from '../records/kind';
 import { createRecord, editRecord, lockRowsInOrder } from '../records/write-path';
 import {
@@ -101,9 +101,7 @@ export async function changeUserRole(actor: UserActor, userId: number, input: un
     action: 'role_changed',
     reason: data.reason,
     async apply(row, { tx }) {
-      if (row.role === data.role) {
-        throw fieldError('role', `${row.name} already has the ${roleLabels[data.role]} role.`);
-      }
+      assertChanged('role', row.role, data.role, `${row.name} already has the ${roleLabels[data.role]} role.`);
       if (data.role !== 'admin') await assertAnotherAdminRemains(tx, row, 'role');
       return { changes: { role: data.role } };
     },
