@@ -42,6 +42,12 @@ export const envSchema = z.object({
   SMTP_HOST: z.string({ error: 'is required: the host name of the SMTP relay' }).min(1),
   SMTP_PORT: port.default(587),
   SMTP_SECURE: bool.default(false),
+  /**
+   * Refuse to send unless the relay upgrades the connection with STARTTLS (when SMTP_SECURE is
+   * false). On by default: messages carry review and sign-in links. Only a relay on this machine
+   * (the test and demo fakes) may go without.
+   */
+  SMTP_REQUIRE_TLS: bool.default(true),
   SMTP_USER: z.string().optional(),
   SMTP_PASSWORD: z.string().optional(),
   MAIL_FROM: z.string().min(3).default('Plumbline <quality@plumbline.invalid>'),

@@ -19,6 +19,7 @@ export function createMailTransport(env: Env = getEnv()): Transporter {
     host: env.SMTP_HOST,
     port: env.SMTP_PORT,
     secure: env.SMTP_SECURE,
+    requireTLS: !env.SMTP_SECURE && env.SMTP_REQUIRE_TLS,
     auth: env.SMTP_USER ? { user: env.SMTP_USER, pass: env.SMTP_PASSWORD ?? '' } : undefined,
     pool: true,
     maxConnections: 2,

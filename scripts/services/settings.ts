@@ -105,6 +105,8 @@ export function appSettings(input: AppSettingsInput): Record<string, string> {
     SMTP_HOST: '127.0.0.1',
     SMTP_PORT: String(input.smtpPort),
     SMTP_SECURE: 'false',
+    // The SMTP fake listens on loopback only and offers no STARTTLS; a real relay must (README, Configuration).
+    SMTP_REQUIRE_TLS: 'false',
     MAIL_FROM: process.env.MAIL_FROM || mailFrom,
     NEXT_DIST_DIR: input.distDir ?? '.next',
   };

@@ -39,6 +39,8 @@ describe('environment settings', () => {
       S3_REGION: 'us-east-1',
       SMTP_PORT: 587,
       SMTP_SECURE: false,
+      // Mail carries sign-in and review links: STARTTLS is required unless turned off (OWASP ASVS 4.0.3 V9.2.1).
+      SMTP_REQUIRE_TLS: true,
       NODE_ENV: 'development',
     });
     expect(env.DATABASE_ADMIN_URL).toBeUndefined();

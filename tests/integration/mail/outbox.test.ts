@@ -350,6 +350,17 @@ describe('outbox worker', () => {
 });
 
 describe('no leftovers', () => {
+  it('refuses to send to a relay that offers no STARTTLS unless the site turned the requirement off (OWASP ASVS 4.0.3 V9.2.1)', async () => {
+    const relay = await startRelay(); // the fake offers no STARTTLS, like a misconfigured relay
+    const mail = { from: 'quality@brackwater.example', to: 'approver@brackwater.example', subject: 'TLS check', text: 'x' };
+    const strict = createMailTransport({ ...getEnv(), SMTP_HOST: '127.0.0.1', SMTP_PORT: relay.port, SMTP_USER: undefined, SMTP_REQUIRE_TLS: true });
+    transports.push(strict);
+    await expect(strict.sendMail(mail)).rejects.toThrow(/STARTTLS/i);
+    const lax = createMailTransport({ ...getEnv(), SMTP_HOST: '127.0.0.1', SMTP_PORT: relay.port, SMTP_USER: undefined, SMTP_REQUIRE_TLS: false });
+    transports.push(lax);
+    await expect(lax.sendMail(mail)).resolves.toBeTruthy();
+  });
+
   it('leaves none of this file\'s messages pending or sending', async () => {
     const left = await db
       .select({ id: mailOutbox.id, status: mailOutbox.status })
